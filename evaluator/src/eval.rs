@@ -1,0 +1,819 @@
+//! Evaluates a checked program in its dependency order. A pure function of the checked
+//! program and the mode: no global state, so results can be cached by content.
+
+use crate::linalg::{riemann_check, to_complex_matrix};
+use crate::num::Num;
+use crate::value::{CurveValue, Value, Valued};
+use kelp_lang::ast::*;
+use kelp_lang::check::{strip_parens, Checked};
+use kelp_lang::number::parse_exact;
+use kelp_lang::{Code, Diagnostic, Span};
+use std::collections::HashMap;
+use std::rc::Rc;
+
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub enum Mode {
+    /// Evaluate every value and claim; write nothing.
+    Check,
+    /// Also write samples and plots.
+    Run,
+}
+
+#[derive(Clone, Debug)]
+pub struct NamedValue {
+    pub name: String,
+    /// The name's span at its definition.
+    pub span: Span,
+    pub value: Valued,
+}
+
+#[derive(Clone, Debug)]
+pub struct Expectation {
+    pub span: Span,
+    /// `None` when the claim could not be decided (or depends on a failed value).
+    pub passed: Option<bool>,
+    pub detail: String,
+}
+
+#[derive(Clone, Debug, Default)]
+pub struct Evaluation {
+    pub diagnostics: Vec<Diagnostic>,
+    pub values: Vec<NamedValue>,
+    pub expectations: Vec<Expectation>,
+    pub outputs: Vec<String>,
+}
+
+impl Evaluation {
+    pub fn has_errors(&self) -> bool {
+        self.diagnostics.iter().any(Diagnostic::is_error)
+    }
+}
+
+/// Why an expression has no value.
+enum Fail {
+    /// A diagnostic at the place that failed.
+    At(Diagnostic),
+    /// A name it uses has no value (its own error is reported there).
+    Dep(String),
+}
+
+type R = Result<Valued, Fail>;
+
+fn fail(code: Code, span: Span, msg: impl Into<String>) -> Fail {
+    Fail::At(Diagnostic::error(code, span, msg))
+}
+
+pub fn evaluate(checked: &Checked, src: &str, mode: &Mode) -> Evaluation {
+    let mut ev = Evaluator {
+        checked,
+        src,
+        env: HashMap::new(),
+        out: Evaluation::default(),
+    };
+    for &i in &checked.order {
+        ev.statement(i, mode);
+    }
+    kelp_lang::diag::sort(&mut ev.out.diagnostics);
+    ev.out
+}
+
+struct Evaluator<'a> {
+    checked: &'a Checked,
+    src: &'a str,
+    env: HashMap<String, Valued>,
+    out: Evaluation,
+}
+
+impl Evaluator<'_> {
+    fn text(&self, s: Span) -> &str {
+        &self.src[s.range()]
+    }
+
+    fn report(&mut self, f: Fail, span: Span, what: &str) {
+        match f {
+            Fail::At(d) => self.out.diagnostics.push(d),
+            Fail::Dep(name) => self.out.diagnostics.push(Diagnostic::warning(
+                Code::DependsOnFailed,
+                span,
+                format!("{what} not evaluated: it uses `{name}`, which has no value"),
+            )),
+        }
+    }
+
+    fn statement(&mut self, i: usize, mode: &Mode) {
+        let stmt = &self.checked.program.stmts[i];
+        match &stmt.kind {
+            StmtKind::Curve { name, .. } => {
+                let Some(eq) = self.checked.curves.get(&i) else {
+                    return;
+                };
+                let v = Valued::exact(Value::Curve(Rc::new(CurveValue {
+                    name: name.name.clone(),
+                    equation: eq.clone(),
+                })));
+                self.define(name, v);
+            }
+            StmtKind::Let { name, value } | StmtKind::Wave { name, value } => {
+                match self.expr(value) {
+                    Ok(v) => self.define(name, v),
+                    Err(f) => self.report(f, name.span, &format!("`{}` is", name.name)),
+                }
+            }
+            StmtKind::Expect { claim, within } => self.expect(stmt.span, claim, within.as_ref()),
+            StmtKind::Output { kind, wave, .. } => {
+                if *mode == Mode::Run {
+                    let f = match self.env.get(&wave.name) {
+                        None => Fail::Dep(wave.name.clone()),
+                        Some(_) => fail(
+                            Code::NotSupported,
+                            stmt.span,
+                            format!(
+                                "`{}` is not available yet: KP waves are not computed yet",
+                                kind.keyword()
+                            ),
+                        ),
+                    };
+                    self.report(f, stmt.span, &format!("`{}`", kind.keyword()));
+                }
+            }
+            StmtKind::Set { .. } | StmtKind::Error => {}
+        }
+    }
+
+    fn define(&mut self, name: &Ident, v: Valued) {
+        self.out.values.push(NamedValue {
+            name: name.name.clone(),
+            span: name.span,
+            value: v.clone(),
+        });
+        self.env.insert(name.name.clone(), v);
+    }
+
+    fn expect(&mut self, span: Span, claim: &Expr, within: Option<&Expr>) {
+        let claim_text = self.text(claim.span).to_string();
+        let top = strip_parens(claim);
+        let outcome = match &top.kind {
+            ExprKind::Binary { op, lhs, rhs } if op.is_comparison() => {
+                self.claim_comparison(*op, lhs, rhs, within)
+            }
+            _ => self.expr(claim).and_then(|v| match v.value {
+                Value::Bool(b) => {
+                    let why = v.reason.map(|r| format!(" ({r})")).unwrap_or_default();
+                    Ok((Some(b), format!("{claim_text} is {b}{why}")))
+                }
+                other => Err(fail(
+                    Code::ClaimNotBoolean,
+                    claim.span,
+                    format!("a claim must be true or false; this is {other}"),
+                )),
+            }),
+        };
+        match outcome {
+            Ok((Some(true), detail)) => self.out.expectations.push(Expectation {
+                span,
+                passed: Some(true),
+                detail,
+            }),
+            Ok((Some(false), detail)) => {
+                self.out.diagnostics.push(Diagnostic::error(
+                    Code::ClaimFailed,
+                    span,
+                    format!("claim is false: {detail}"),
+                ));
+                self.out.expectations.push(Expectation {
+                    span,
+                    passed: Some(false),
+                    detail,
+                });
+            }
+            Ok((None, detail)) => {
+                self.out.diagnostics.push(
+                    Diagnostic::error(Code::ClaimUndecided, span, format!("claim cannot be decided: {detail}"))
+                        .with_note("the error bound of the values is larger than the tolerance; raise `within` or the accuracy"),
+                );
+                self.out.expectations.push(Expectation {
+                    span,
+                    passed: None,
+                    detail,
+                });
+            }
+            Err(f) => {
+                let detail = match &f {
+                    Fail::At(d) => d.message.clone(),
+                    Fail::Dep(n) => format!("uses `{n}`, which has no value"),
+                };
+                self.report(f, span, "claim");
+                self.out.expectations.push(Expectation {
+                    span,
+                    passed: None,
+                    detail,
+                });
+            }
+        }
+    }
+
+    /// `A op B [within T]`: decides with the values' error bounds, and says what was compared.
+    fn claim_comparison(
+        &mut self,
+        op: BinOp,
+        lhs: &Expr,
+        rhs: &Expr,
+        within: Option<&Expr>,
+    ) -> Result<(Option<bool>, String), Fail> {
+        let l = self.expr(lhs)?;
+        let r = self.expr(rhs)?;
+        let tol = match within {
+            Some(t) => {
+                let v = self.expr(t)?;
+                match &v.value {
+                    Value::Num(n) if n.to_real().is_some_and(|x| x > 0.0) => n.to_real().unwrap(),
+                    _ => {
+                        return Err(fail(
+                            Code::BadSettingValue,
+                            t.span,
+                            "a tolerance must be a positive real number",
+                        ))
+                    }
+                }
+            }
+            None => self.checked.settings.tolerance,
+        };
+        let decision = compare(op, &l, &r, tol, lhs.span.join(rhs.span))?;
+        let mut detail = format!("{} = {}", self.text(lhs.span), show(&l));
+        if !is_literal(rhs) {
+            detail.push_str(&format!(", {} = {}", self.text(rhs.span), show(&r)));
+        } else if matches!(op, BinOp::Eq | BinOp::Ne) {
+            detail.push_str(&format!(", expected {}", self.text(rhs.span)));
+        } else {
+            detail.push_str(&format!(", bound {} {}", op.text(), self.text(rhs.span)));
+        }
+        if let Some(d) = decision.distance {
+            detail.push_str(&format!(" (difference {d:.3e}, tolerance {tol:.1e})"));
+        }
+        Ok((decision.holds, detail))
+    }
+
+    fn expr(&mut self, e: &Expr) -> R {
+        let v = self.expr_inner(e)?;
+        if let Value::Num(n) = &v.value {
+            if !n.is_finite() {
+                return Err(fail(
+                    Code::EvalFailed,
+                    e.span,
+                    "the result is not a finite number",
+                ));
+            }
+        }
+        Ok(v)
+    }
+
+    fn expr_inner(&mut self, e: &Expr) -> R {
+        match &e.kind {
+            ExprKind::Number(t) => parse_exact(t)
+                .map(|q| Valued::exact(Value::Num(Num::Exact(q))))
+                .map_err(|m| fail(Code::NumberTooLarge, e.span, m)),
+            ExprKind::Imag(t) => {
+                let q = parse_exact(t).map_err(|m| fail(Code::NumberTooLarge, e.span, m))?;
+                Ok(Valued::exact(Value::Num(Num::Complex(
+                    num_complex::Complex64::new(0.0, kelp_lang::number::to_f64(&q)),
+                ))))
+            }
+            ExprKind::Bool(b) => Ok(Valued::exact(Value::Bool(*b))),
+            ExprKind::Str(s) => Ok(Valued::exact(Value::Str(s.clone()))),
+            ExprKind::Name(n) => self.env.get(n).cloned().ok_or_else(|| Fail::Dep(n.clone())),
+            ExprKind::Paren(inner) => self.expr(inner),
+            ExprKind::Error => Err(fail(
+                Code::EvalFailed,
+                e.span,
+                "this expression did not parse",
+            )),
+            ExprKind::Point { coords, projective } => {
+                let mut out = Vec::new();
+                for c in coords {
+                    out.push(self.number(c)?.0);
+                }
+                Ok(Valued::exact(Value::Point {
+                    coords: out,
+                    projective: *projective,
+                }))
+            }
+            ExprKind::List(items) => self.list(items),
+            ExprKind::Unary {
+                op: UnOp::Neg,
+                operand,
+            } => {
+                let v = self.expr(operand)?;
+                let value = map_nums(&v.value, &|n| n.neg()).ok_or_else(|| {
+                    fail(
+                        Code::WrongKind,
+                        e.span,
+                        "`-` applies to numbers, vectors and matrices",
+                    )
+                })?;
+                Ok(Valued { value, ..v })
+            }
+            ExprKind::Unary {
+                op: UnOp::Not,
+                operand,
+            } => match self.expr(operand)?.value {
+                Value::Bool(b) => Ok(Valued::exact(Value::Bool(!b))),
+                _ => Err(fail(Code::WrongKind, e.span, "`not` applies to true/false")),
+            },
+            ExprKind::Binary { op, lhs, rhs } => {
+                let l = self.expr(lhs)?;
+                if matches!(op, BinOp::And | BinOp::Or) {
+                    let lb = self.boolean(&l, lhs.span)?;
+                    // Short-circuit like the words say.
+                    if (*op == BinOp::And && !lb) || (*op == BinOp::Or && lb) {
+                        return Ok(Valued::exact(Value::Bool(lb)));
+                    }
+                    let r = self.expr(rhs)?;
+                    return Ok(Valued::exact(Value::Bool(self.boolean(&r, rhs.span)?)));
+                }
+                let r = self.expr(rhs)?;
+                if op.is_comparison() {
+                    let d = compare(*op, &l, &r, self.checked.settings.tolerance, e.span)?;
+                    return match d.holds {
+                        Some(b) => Ok(Valued::exact(Value::Bool(b))),
+                        None => Err(fail(
+                            Code::ClaimUndecided,
+                            e.span,
+                            "the comparison cannot be decided within the tolerance",
+                        )),
+                    };
+                }
+                arith(*op, &l, &r, e.span)
+            }
+            ExprKind::Call { func, args } => self.call(e.span, func, args),
+        }
+    }
+
+    fn boolean(&self, v: &Valued, span: Span) -> Result<bool, Fail> {
+        match v.value {
+            Value::Bool(b) => Ok(b),
+            _ => Err(fail(Code::WrongKind, span, "expected true or false")),
+        }
+    }
+
+    fn number(&mut self, e: &Expr) -> Result<(Num, f64), Fail> {
+        let v = self.expr(e)?;
+        match v.value {
+            Value::Num(n) => Ok((n, v.error_bound)),
+            other => Err(fail(
+                Code::WrongKind,
+                e.span,
+                format!("expected a number, found a {}", other.type_name()),
+            )),
+        }
+    }
+
+    fn list(&mut self, items: &[Expr]) -> R {
+        let vals: Vec<Valued> = items
+            .iter()
+            .map(|i| self.expr(i))
+            .collect::<Result<_, _>>()?;
+        let err = vals.iter().map(|v| v.error_bound).fold(0.0, f64::max);
+        if vals.iter().all(|v| matches!(v.value, Value::Num(_))) {
+            let nums = vals
+                .into_iter()
+                .map(|v| {
+                    if let Value::Num(n) = v.value {
+                        n
+                    } else {
+                        unreachable!()
+                    }
+                })
+                .collect();
+            return Ok(Valued {
+                value: Value::Vector(nums),
+                error_bound: err,
+                reason: None,
+            });
+        }
+        if !vals.is_empty() && vals.iter().all(|v| matches!(v.value, Value::Vector(_))) {
+            let rows: Vec<Vec<Num>> = vals
+                .into_iter()
+                .map(|v| {
+                    if let Value::Vector(r) = v.value {
+                        r
+                    } else {
+                        unreachable!()
+                    }
+                })
+                .collect();
+            if rows.iter().all(|r| r.len() == rows[0].len()) {
+                return Ok(Valued {
+                    value: Value::Matrix(rows),
+                    error_bound: err,
+                    reason: None,
+                });
+            }
+            return Err(fail(
+                Code::RaggedMatrix,
+                items[0].span.join(items[items.len() - 1].span),
+                "matrix rows must have equal length",
+            ));
+        }
+        Ok(Valued {
+            value: Value::List(vals.into_iter().map(|v| v.value).collect()),
+            error_bound: err,
+            reason: None,
+        })
+    }
+
+    fn call(&mut self, span: Span, func: &Ident, args: &[Arg]) -> R {
+        let positional: Vec<&Expr> = args
+            .iter()
+            .filter_map(|a| {
+                if let Arg::Positional(e) = a {
+                    Some(e)
+                } else {
+                    None
+                }
+            })
+            .collect();
+        let first = |this: &mut Self| -> R {
+            let e = positional.first().ok_or_else(|| {
+                fail(
+                    Code::MissingArgument,
+                    func.span,
+                    format!("`{}` needs an argument", func.name),
+                )
+            })?;
+            this.expr(e)
+        };
+        let arg_span = positional.first().map_or(span, |e| e.span);
+        match func.name.as_str() {
+            "degree" => match first(self)?.value {
+                Value::Curve(c) => Ok(Valued::exact(Value::Num(Num::int(
+                    c.equation.degree as i64,
+                )))),
+                _ => Err(fail(Code::WrongKind, arg_span, "`degree` needs a curve")),
+            },
+            "count" => {
+                let n = match first(self)?.value {
+                    Value::Vector(v) => v.len(),
+                    Value::Matrix(m) => m.len(),
+                    Value::List(l) => l.len(),
+                    _ => {
+                        return Err(fail(
+                            Code::WrongKind,
+                            arg_span,
+                            "`count` needs a list or vector",
+                        ))
+                    }
+                };
+                Ok(Valued::exact(Value::Num(Num::int(n as i64))))
+            }
+            "abs" | "re" | "im" => {
+                let v = first(self)?;
+                let Value::Num(n) = &v.value else {
+                    return Err(fail(
+                        Code::WrongKind,
+                        arg_span,
+                        format!("`{}` needs a number", func.name),
+                    ));
+                };
+                let r = match func.name.as_str() {
+                    "abs" => n.abs(),
+                    "re" => n.re(),
+                    _ => n.im(),
+                };
+                Ok(Valued {
+                    value: Value::Num(r),
+                    ..v
+                })
+            }
+            "is_riemann" => {
+                let v = first(self)?;
+                let Value::Matrix(m) = &v.value else {
+                    return Err(fail(
+                        Code::WrongKind,
+                        arg_span,
+                        "`is_riemann` needs a square matrix",
+                    ));
+                };
+                if m.len() != m[0].len() {
+                    return Err(fail(
+                        Code::ShapeMismatch,
+                        arg_span,
+                        format!(
+                            "`is_riemann` needs a square matrix; this is {} x {}",
+                            m.len(),
+                            m[0].len()
+                        ),
+                    ));
+                }
+                let r = riemann_check(
+                    &to_complex_matrix(m),
+                    self.checked.settings.tolerance + v.error_bound,
+                );
+                Ok(Valued {
+                    value: Value::Bool(r.holds()),
+                    error_bound: 0.0,
+                    reason: Some(r.reason()),
+                })
+            }
+            name => Err(fail(Code::NotSupported, span, not_supported(name))),
+        }
+    }
+}
+
+/// What is missing for a function kelp does not compute yet.
+fn not_supported(name: &str) -> String {
+    let why = match name {
+        "genus" | "smooth" | "singular_points" | "j_invariant" => {
+            "exact curve algebra (singular points, delta invariants, genus) is not built yet"
+        }
+        "tau" => "Riemann matrices of curves are not computed yet",
+        "theta" => "Riemann theta functions are not computed yet",
+        _ => "KP waves are not computed yet",
+    };
+    format!("`{name}` is not supported yet: {why}; kelp gives no value rather than a made-up one")
+}
+
+fn is_literal(e: &Expr) -> bool {
+    match &e.kind {
+        ExprKind::Number(_) | ExprKind::Imag(_) | ExprKind::Bool(_) => true,
+        ExprKind::Unary { operand, .. } | ExprKind::Paren(operand) => is_literal(operand),
+        _ => false,
+    }
+}
+
+fn show(v: &Valued) -> String {
+    if v.error_bound > 0.0 {
+        format!("{} (± {:.1e})", v.value, v.error_bound)
+    } else {
+        v.value.to_string()
+    }
+}
+
+fn map_nums(v: &Value, f: &dyn Fn(&Num) -> Num) -> Option<Value> {
+    Some(match v {
+        Value::Num(n) => Value::Num(f(n)),
+        Value::Vector(x) => Value::Vector(x.iter().map(f).collect()),
+        Value::Matrix(m) => Value::Matrix(m.iter().map(|r| r.iter().map(f).collect()).collect()),
+        _ => return None,
+    })
+}
+
+/// The entries of a numeric value with its shape, for entrywise operations.
+fn entries(v: &Value) -> Option<((usize, usize, u8), Vec<&Num>)> {
+    match v {
+        Value::Num(n) => Some(((1, 1, 0), vec![n])),
+        Value::Vector(x) => Some(((x.len(), 1, 1), x.iter().collect())),
+        Value::Matrix(m) => Some((
+            (m.len(), m.first().map_or(0, Vec::len), 2),
+            m.iter().flatten().collect(),
+        )),
+        _ => None,
+    }
+}
+
+struct Decision {
+    /// `None`: undecidable within the error bounds.
+    holds: Option<bool>,
+    /// For numeric comparisons: the largest entrywise difference.
+    distance: Option<f64>,
+}
+
+/// Exact values compare exactly; numerical ones within `tol`, decided only when the
+/// error bounds cannot change the answer.
+fn compare(op: BinOp, l: &Valued, r: &Valued, tol: f64, span: Span) -> Result<Decision, Fail> {
+    let err = l.error_bound + r.error_bound;
+    let negate = |d: Decision| Decision {
+        holds: d.holds.map(|b| !b),
+        distance: d.distance,
+    };
+    match op {
+        BinOp::Eq | BinOp::Ne => {
+            let d = match (&l.value, &r.value) {
+                (Value::Bool(a), Value::Bool(b)) => Decision {
+                    holds: Some(a == b),
+                    distance: None,
+                },
+                (a, b) => {
+                    let (Some((sa, ea)), Some((sb, eb))) = (entries(a), entries(b)) else {
+                        return Err(fail(
+                            Code::WrongKind,
+                            span,
+                            format!(
+                                "cannot compare a {} with a {}",
+                                a.type_name(),
+                                b.type_name()
+                            ),
+                        ));
+                    };
+                    if sa != sb {
+                        return Err(fail(
+                            Code::ShapeMismatch,
+                            span,
+                            "the two sides have different shapes",
+                        ));
+                    }
+                    if ea.iter().chain(eb.iter()).all(|n| n.is_exact()) {
+                        Decision {
+                            holds: Some(ea == eb),
+                            distance: None,
+                        }
+                    } else {
+                        let dist = ea
+                            .iter()
+                            .zip(&eb)
+                            .map(|(x, y)| x.distance(y))
+                            .fold(0.0, f64::max);
+                        let holds = if dist + err <= tol {
+                            Some(true)
+                        } else if dist - err > tol {
+                            Some(false)
+                        } else {
+                            None
+                        };
+                        Decision {
+                            holds,
+                            distance: Some(dist),
+                        }
+                    }
+                }
+            };
+            Ok(if op == BinOp::Ne { negate(d) } else { d })
+        }
+        _ => {
+            let (Value::Num(a), Value::Num(b)) = (&l.value, &r.value) else {
+                return Err(fail(
+                    Code::WrongKind,
+                    span,
+                    "`<`, `<=`, `>`, `>=` compare real numbers",
+                ));
+            };
+            let holds = match (a, b) {
+                (Num::Exact(x), Num::Exact(y)) => Some(match op {
+                    BinOp::Lt => x < y,
+                    BinOp::Le => x <= y,
+                    BinOp::Gt => x > y,
+                    _ => x >= y,
+                }),
+                _ => {
+                    let (Some(x), Some(y)) = (a.to_real(), b.to_real()) else {
+                        return Err(fail(Code::WrongKind, span, "complex numbers have no order; compare `abs(...)`, `re(...)` or `im(...)`"));
+                    };
+                    // (y - x) decides `<` when it clears the error bounds.
+                    let gap = match op {
+                        BinOp::Lt | BinOp::Le => y - x,
+                        _ => x - y,
+                    };
+                    if gap > err {
+                        Some(true)
+                    } else if gap < -err {
+                        Some(false)
+                    } else if err == 0.0 {
+                        // gap is exactly 0: equal values.
+                        Some(matches!(op, BinOp::Le | BinOp::Ge))
+                    } else {
+                        None
+                    }
+                }
+            };
+            Ok(Decision {
+                holds,
+                distance: None,
+            })
+        }
+    }
+}
+
+fn arith(op: BinOp, l: &Valued, r: &Valued, span: Span) -> R {
+    let err = propagate(op, l, r);
+    let bad = || {
+        fail(
+            Code::WrongKind,
+            span,
+            format!(
+                "`{}` does not apply to a {} and a {}",
+                op.text(),
+                l.value.type_name(),
+                r.value.type_name()
+            ),
+        )
+    };
+    let scalar = |a: &Num, b: &Num| -> Result<Num, Fail> {
+        match op {
+            BinOp::Add => Ok(a.add(b)),
+            BinOp::Sub => Ok(a.sub(b)),
+            BinOp::Mul => Ok(a.mul(b)),
+            BinOp::Div => a.div(b).map_err(|m| fail(Code::EvalFailed, span, m)),
+            BinOp::Pow => a.pow(b).map_err(|m| fail(Code::EvalFailed, span, m)),
+            _ => Err(bad()),
+        }
+    };
+    let value = match (&l.value, &r.value) {
+        (Value::Num(a), Value::Num(b)) => Value::Num(scalar(a, b)?),
+        (Value::Vector(a), Value::Vector(b)) if matches!(op, BinOp::Add | BinOp::Sub) => {
+            if a.len() != b.len() {
+                return Err(fail(
+                    Code::ShapeMismatch,
+                    span,
+                    format!("vectors of lengths {} and {}", a.len(), b.len()),
+                ));
+            }
+            Value::Vector(
+                a.iter()
+                    .zip(b)
+                    .map(|(x, y)| scalar(x, y))
+                    .collect::<Result<_, _>>()?,
+            )
+        }
+        (Value::Matrix(a), Value::Matrix(b)) if matches!(op, BinOp::Add | BinOp::Sub) => {
+            if a.len() != b.len() || a[0].len() != b[0].len() {
+                return Err(fail(
+                    Code::ShapeMismatch,
+                    span,
+                    "matrices of different sizes",
+                ));
+            }
+            Value::Matrix(
+                a.iter()
+                    .zip(b)
+                    .map(|(ra, rb)| {
+                        ra.iter()
+                            .zip(rb)
+                            .map(|(x, y)| scalar(x, y))
+                            .collect::<Result<_, _>>()
+                    })
+                    .collect::<Result<_, _>>()?,
+            )
+        }
+        (Value::Num(s), v @ (Value::Vector(_) | Value::Matrix(_))) if op == BinOp::Mul => {
+            map_nums(v, &|n| s.mul(n)).unwrap()
+        }
+        (v @ (Value::Vector(_) | Value::Matrix(_)), Value::Num(s)) if op == BinOp::Mul => {
+            map_nums(v, &|n| n.mul(s)).unwrap()
+        }
+        (v @ (Value::Vector(_) | Value::Matrix(_)), Value::Num(s)) if op == BinOp::Div => {
+            if s.is_zero() {
+                return Err(fail(Code::EvalFailed, span, "division by zero"));
+            }
+            map_nums(v, &|n| n.div(s).unwrap()).unwrap()
+        }
+        (Value::Matrix(a), Value::Matrix(b)) if op == BinOp::Mul => {
+            if a[0].len() != b.len() {
+                return Err(fail(
+                    Code::ShapeMismatch,
+                    span,
+                    "the matrix sizes do not fit for a product",
+                ));
+            }
+            Value::Matrix(
+                a.iter()
+                    .map(|row| {
+                        (0..b[0].len())
+                            .map(|j| dot(row, b.iter().map(|br| &br[j])))
+                            .collect()
+                    })
+                    .collect(),
+            )
+        }
+        (Value::Matrix(a), Value::Vector(x)) if op == BinOp::Mul => {
+            if a[0].len() != x.len() {
+                return Err(fail(
+                    Code::ShapeMismatch,
+                    span,
+                    "the matrix and vector sizes do not fit for a product",
+                ));
+            }
+            Value::Vector(a.iter().map(|row| dot(row, x.iter())).collect())
+        }
+        _ => return Err(bad()),
+    };
+    Ok(Valued {
+        value,
+        error_bound: err,
+        reason: None,
+    })
+}
+
+fn dot<'a>(row: &[Num], col: impl Iterator<Item = &'a Num>) -> Num {
+    row.iter()
+        .zip(col)
+        .fold(Num::int(0), |acc, (a, b)| acc.add(&a.mul(b)))
+}
+
+/// First-order propagation of error bounds through arithmetic.
+fn propagate(op: BinOp, l: &Valued, r: &Valued) -> f64 {
+    if l.error_bound == 0.0 && r.error_bound == 0.0 {
+        return 0.0;
+    }
+    let size = |v: &Value| {
+        entries(v).map_or(0.0, |(_, e)| {
+            e.iter().map(|n| n.to_complex().norm()).fold(0.0, f64::max)
+        })
+    };
+    let (a, b) = (size(&l.value), size(&r.value));
+    let (ea, eb) = (l.error_bound, r.error_bound);
+    match op {
+        BinOp::Add | BinOp::Sub => ea + eb,
+        BinOp::Mul => a * eb + b * ea + ea * eb,
+        BinOp::Div if b > eb => (ea + a * eb / b) / (b - eb),
+        _ => f64::INFINITY,
+    }
+}

@@ -1,0 +1,12 @@
+//! Evaluation of a checked kelp program: typed values in dependency order, claims with
+//! tolerances and error bounds, and (as the mathematics lands) exact curve algebra,
+//! theta functions, Riemann matrices, KP waves and outputs.
+
+pub mod eval;
+pub mod json;
+pub mod linalg;
+pub mod num;
+pub mod value;
+
+pub use eval::{evaluate, Evaluation, Expectation, Mode, NamedValue};
+pub use value::{Value, Valued};

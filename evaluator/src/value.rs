@@ -1,0 +1,98 @@
+//! Runtime values.
+
+use crate::num::Num;
+use kelp_lang::check::CurveEquation;
+use std::fmt;
+use std::rc::Rc;
+
+#[derive(Clone, Debug)]
+pub struct CurveValue {
+    pub name: String,
+    pub equation: CurveEquation,
+}
+
+#[derive(Clone, Debug)]
+pub enum Value {
+    Num(Num),
+    Bool(bool),
+    Str(String),
+    Vector(Vec<Num>),
+    Matrix(Vec<Vec<Num>>),
+    List(Vec<Value>),
+    Curve(Rc<CurveValue>),
+    Point { coords: Vec<Num>, projective: bool },
+}
+
+/// A value with the bound on its numerical error (0 for exact values and literals).
+#[derive(Clone, Debug)]
+pub struct Valued {
+    pub value: Value,
+    pub error_bound: f64,
+    /// Why a boolean came out as it did, for claim messages ("smallest eigenvalue ...").
+    pub reason: Option<String>,
+}
+
+impl Valued {
+    pub fn exact(value: Value) -> Self {
+        Valued {
+            value,
+            error_bound: 0.0,
+            reason: None,
+        }
+    }
+}
+
+impl Value {
+    pub fn type_name(&self) -> &'static str {
+        match self {
+            Value::Num(Num::Exact(q)) if q.is_integer() => "integer",
+            Value::Num(Num::Exact(_)) => "rational",
+            Value::Num(Num::Real(_)) => "real",
+            Value::Num(Num::Complex(_)) => "complex",
+            Value::Bool(_) => "boolean",
+            Value::Str(_) => "string",
+            Value::Vector(_) => "vector",
+            Value::Matrix(_) => "matrix",
+            Value::List(_) => "list",
+            Value::Curve(_) => "curve",
+            Value::Point { .. } => "point",
+        }
+    }
+}
+
+fn join(items: impl Iterator<Item = String>) -> String {
+    items.collect::<Vec<_>>().join(", ")
+}
+
+impl fmt::Display for Value {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            Value::Num(n) => write!(f, "{n}"),
+            Value::Bool(b) => write!(f, "{b}"),
+            Value::Str(s) => write!(f, "{s:?}"),
+            Value::Vector(v) => write!(f, "[{}]", join(v.iter().map(|n| n.to_string()))),
+            Value::Matrix(m) => write!(
+                f,
+                "[{}]",
+                join(
+                    m.iter()
+                        .map(|r| format!("[{}]", join(r.iter().map(|n| n.to_string()))))
+                )
+            ),
+            Value::List(l) => write!(f, "[{}]", join(l.iter().map(|v| v.to_string()))),
+            Value::Curve(c) => write!(f, "curve {}: {} = 0", c.name, c.equation.poly),
+            Value::Point { coords, projective } => {
+                let sep = if *projective { " : " } else { ", " };
+                write!(
+                    f,
+                    "({})",
+                    coords
+                        .iter()
+                        .map(|n| n.to_string())
+                        .collect::<Vec<_>>()
+                        .join(sep)
+                )
+            }
+        }
+    }
+}

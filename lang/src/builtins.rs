@@ -1,0 +1,272 @@
+//! The built-in functions: their parameters, result kind and documentation. The checker
+//! validates calls against this table; the language server shows it on hover.
+
+/// What a parameter accepts.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum ParamKind {
+    Number,
+    Curve,
+    Wave,
+    /// A matrix (list of equal-length lists).
+    Matrix,
+    Vector,
+    /// A list of vectors (directions for `along`).
+    VectorList,
+    /// A vector or list (for `count`).
+    Collection,
+    /// A point `(x, y)` or `(x : y : z)`.
+    Point,
+    /// Characteristics `[a, b]`, a 2 x g matrix.
+    Characteristic,
+}
+
+#[derive(Clone, Copy, Debug)]
+pub struct Param {
+    pub name: &'static str,
+    pub kind: ParamKind,
+    pub required: bool,
+}
+
+/// Whether the call takes region axes (`x in A..B`, `t = A`).
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum RegionUse {
+    None,
+    Required,
+    Optional,
+}
+
+/// The kind a call yields (shapes are filled in by the checker where known).
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Yields {
+    Number,
+    Bool,
+    List,
+    Matrix,
+    Wave,
+}
+
+#[derive(Clone, Copy, Debug)]
+pub struct Builtin {
+    pub name: &'static str,
+    pub positional: &'static [Param],
+    pub keywords: &'static [Param],
+    pub region: RegionUse,
+    pub yields: Yields,
+    pub signature: &'static str,
+    pub summary: &'static str,
+}
+
+impl Builtin {
+    pub fn is_wave_constructor(&self) -> bool {
+        self.yields == Yields::Wave
+    }
+}
+
+const fn p(name: &'static str, kind: ParamKind) -> Param {
+    Param {
+        name,
+        kind,
+        required: true,
+    }
+}
+const fn opt(name: &'static str, kind: ParamKind) -> Param {
+    Param {
+        name,
+        kind,
+        required: false,
+    }
+}
+
+use ParamKind as K;
+
+pub const BUILTINS: &[Builtin] = &[
+    Builtin {
+        name: "degree",
+        positional: &[p("curve", K::Curve)],
+        keywords: &[],
+        region: RegionUse::None,
+        yields: Yields::Number,
+        signature: "degree(C)",
+        summary: "Total degree of the curve's equation (an integer).",
+    },
+    Builtin {
+        name: "genus",
+        positional: &[p("curve", K::Curve)],
+        keywords: &[],
+        region: RegionUse::None,
+        yields: Yields::Number,
+        signature: "genus(C)",
+        summary: "Geometric genus of an irreducible curve: (d-1)(d-2)/2 minus the delta invariants of its singular points.",
+    },
+    Builtin {
+        name: "smooth",
+        positional: &[p("curve", K::Curve)],
+        keywords: &[],
+        region: RegionUse::None,
+        yields: Yields::Bool,
+        signature: "smooth(C)",
+        summary: "Whether the projective closure of the curve has no singular point.",
+    },
+    Builtin {
+        name: "singular_points",
+        positional: &[p("curve", K::Curve)],
+        keywords: &[],
+        region: RegionUse::None,
+        yields: Yields::List,
+        signature: "singular_points(C)",
+        summary: "Projective singular points, each with multiplicity, type and delta invariant.",
+    },
+    Builtin {
+        name: "j_invariant",
+        positional: &[p("curve", K::Curve)],
+        keywords: &[],
+        region: RegionUse::None,
+        yields: Yields::Number,
+        signature: "j_invariant(C)",
+        summary: "Exact j-invariant (a rational) of a genus-1 curve.",
+    },
+    Builtin {
+        name: "tau",
+        positional: &[p("curve", K::Curve)],
+        keywords: &[],
+        region: RegionUse::None,
+        yields: Yields::Matrix,
+        signature: "tau(C)",
+        summary: "A Riemann matrix of the curve (symmetric, positive-definite imaginary part) with an error estimate.",
+    },
+    Builtin {
+        name: "is_riemann",
+        positional: &[p("matrix", K::Matrix)],
+        keywords: &[],
+        region: RegionUse::None,
+        yields: Yields::Bool,
+        signature: "is_riemann(M)",
+        summary: "Whether M is symmetric within the tolerance and its imaginary part is positive definite.",
+    },
+    Builtin {
+        name: "theta",
+        positional: &[p("tau", K::Matrix), p("z", K::Vector)],
+        keywords: &[opt("char", K::Characteristic), opt("along", K::VectorList)],
+        region: RegionUse::None,
+        yields: Yields::Number,
+        signature: "theta(T, z, char = [a, b], along = [d1, d2, ...])",
+        summary: "Riemann theta value at z for the Riemann matrix T; `char` gives half-integer characteristics, `along` directions of a derivative.",
+    },
+    Builtin {
+        name: "krichever",
+        positional: &[p("curve", K::Curve)],
+        keywords: &[p("at", K::Point), opt("shift", K::Vector)],
+        region: RegionUse::None,
+        yields: Yields::Wave,
+        signature: "krichever(C, at = P, shift = D)",
+        summary: "Krichever's KP wave of the curve from the smooth point P.",
+    },
+    Builtin {
+        name: "theta_wave",
+        positional: &[p("tau", K::Matrix)],
+        keywords: &[p("u", K::Vector), p("v", K::Vector), p("w", K::Vector), p("c", K::Number), opt("shift", K::Vector)],
+        region: RegionUse::None,
+        yields: Yields::Wave,
+        signature: "theta_wave(T, u = U, v = V, w = W, c = c, shift = D)",
+        summary: "u = 2 d^2/dx^2 log theta(U x + V y + W t + D) + c from explicit data.",
+    },
+    Builtin {
+        name: "soliton",
+        positional: &[],
+        keywords: &[p("kappa", K::Vector), p("a", K::Matrix)],
+        region: RegionUse::None,
+        yields: Yields::Wave,
+        signature: "soliton(kappa = K, a = A)",
+        summary: "Line-soliton from distinct real kappa and a full-rank k x n matrix A (a point of the Grassmannian).",
+    },
+    Builtin {
+        name: "rational",
+        positional: &[],
+        keywords: &[p("partition", K::Vector), opt("times", K::Vector)],
+        region: RegionUse::None,
+        yields: Yields::Wave,
+        signature: "rational(partition = L, times = [t4, t5, ...])",
+        summary: "Rational KP solution whose tau function is the Schur polynomial of the partition L.",
+    },
+    Builtin {
+        name: "kp_residual",
+        positional: &[p("wave", K::Wave)],
+        keywords: &[],
+        region: RegionUse::Required,
+        yields: Yields::Number,
+        signature: "kp_residual(W, x in A..B, y in A..B, t = T)",
+        summary: "Largest scaled residual of the KP equation over the region's sample points.",
+    },
+    Builtin {
+        name: "regular",
+        positional: &[p("wave", K::Wave)],
+        keywords: &[],
+        region: RegionUse::Optional,
+        yields: Yields::Bool,
+        signature: "regular(W [, region])",
+        summary: "Whether u stays finite (its tau function keeps its sign).",
+    },
+    Builtin {
+        name: "value",
+        positional: &[p("wave", K::Wave), p("x", K::Number), p("y", K::Number), p("t", K::Number)],
+        keywords: &[],
+        region: RegionUse::None,
+        yields: Yields::Number,
+        signature: "value(W, x, y, t)",
+        summary: "The wave's u at the point (x, y, t).",
+    },
+    Builtin {
+        name: "count",
+        positional: &[p("list", K::Collection)],
+        keywords: &[],
+        region: RegionUse::None,
+        yields: Yields::Number,
+        signature: "count(L)",
+        summary: "Number of entries of a list or vector.",
+    },
+    Builtin {
+        name: "abs",
+        positional: &[p("z", K::Number)],
+        keywords: &[],
+        region: RegionUse::None,
+        yields: Yields::Number,
+        signature: "abs(z)",
+        summary: "Absolute value (modulus of a complex number).",
+    },
+    Builtin {
+        name: "re",
+        positional: &[p("z", K::Number)],
+        keywords: &[],
+        region: RegionUse::None,
+        yields: Yields::Number,
+        signature: "re(z)",
+        summary: "Real part.",
+    },
+    Builtin {
+        name: "im",
+        positional: &[p("z", K::Number)],
+        keywords: &[],
+        region: RegionUse::None,
+        yields: Yields::Number,
+        signature: "im(z)",
+        summary: "Imaginary part.",
+    },
+];
+
+pub fn lookup(name: &str) -> Option<&'static Builtin> {
+    BUILTINS.iter().find(|b| b.name == name)
+}
+
+/// The settings `set` accepts, with their default and meaning.
+pub const SETTINGS: &[(&str, f64, &str)] = &[
+    (
+        "tolerance",
+        1e-10,
+        "default absolute tolerance of `==` between numerical values",
+    ),
+    (
+        "accuracy",
+        1e-12,
+        "requested absolute accuracy of numerical results (theta values, periods)",
+    ),
+];

@@ -1,0 +1,237 @@
+//! The canonical formatter behind `kelp fmt`. One statement per line, canonical spacing,
+//! at most one blank line in a row, comments kept (trailing comments of neighbouring
+//! lines aligned). A statement that does not parse, or that has a comment inside it, is
+//! kept as written. Formatting is idempotent.
+
+use crate::ast::*;
+use crate::parser::parse;
+
+enum Item {
+    Blank,
+    Comment(String),
+    Line {
+        code: String,
+        trailing: Option<String>,
+    },
+}
+
+pub fn format(src: &str) -> String {
+    let parsed = parse(src);
+    let program = &parsed.program;
+    let mut items: Vec<Item> = Vec::new();
+    let mut comments = program.comments.iter().peekable();
+    let mut last_end = 0usize;
+    let blank_between = |a: usize, b: usize| src[a..b].matches('\n').count() >= 2;
+    for stmt in &program.stmts {
+        // Comments before the statement, each on its own line.
+        while let Some(c) = comments.next_if(|c| c.span.start < stmt.span.start) {
+            if !items.is_empty() && blank_between(last_end, c.span.start) {
+                items.push(Item::Blank);
+            }
+            items.push(Item::Comment(c.text.trim_end().to_string()));
+            last_end = c.span.end;
+        }
+        if !items.is_empty() && blank_between(last_end, stmt.span.start) {
+            items.push(Item::Blank);
+        }
+        let inner_comment = comments
+            .peek()
+            .is_some_and(|c| c.span.start < stmt.span.end);
+        let code = if matches!(stmt.kind, StmtKind::Error) || inner_comment {
+            // Kept verbatim, with the comments it contains.
+            while comments.next_if(|c| c.span.start < stmt.span.end).is_some() {}
+            src[stmt.span.range()].trim_end().to_string()
+        } else {
+            stmt_text(stmt)
+        };
+        last_end = stmt.span.end;
+        let trailing = comments
+            .next_if(|c| !src[stmt.span.end..c.span.start].contains('\n'))
+            .map(|c| {
+                last_end = c.span.end;
+                c.text.trim_end().to_string()
+            });
+        items.push(Item::Line { code, trailing });
+    }
+    for c in comments {
+        if !items.is_empty() && blank_between(last_end, c.span.start) {
+            items.push(Item::Blank);
+        }
+        items.push(Item::Comment(c.text.trim_end().to_string()));
+        last_end = c.span.end;
+    }
+    render(&items)
+}
+
+fn render(items: &[Item]) -> String {
+    let mut out = String::new();
+    let mut i = 0;
+    while i < items.len() {
+        match &items[i] {
+            Item::Blank => out.push('\n'),
+            Item::Comment(c) => {
+                out.push_str(c);
+                out.push('\n');
+            }
+            Item::Line { .. } => {
+                // A run of consecutive single-line statements with trailing comments
+                // shares one comment column.
+                let mut j = i;
+                while j < items.len()
+                    && matches!(&items[j], Item::Line { code, trailing: Some(_) } if !code.contains('\n'))
+                {
+                    j += 1;
+                }
+                if j == i {
+                    if let Item::Line { code, trailing } = &items[i] {
+                        out.push_str(code);
+                        if let Some(t) = trailing {
+                            out.push_str("  ");
+                            out.push_str(t);
+                        }
+                        out.push('\n');
+                    }
+                    i += 1;
+                    continue;
+                }
+                let width = items[i..j]
+                    .iter()
+                    .map(|it| {
+                        if let Item::Line { code, .. } = it {
+                            code.chars().count()
+                        } else {
+                            0
+                        }
+                    })
+                    .max()
+                    .unwrap_or(0);
+                for it in &items[i..j] {
+                    if let Item::Line {
+                        code,
+                        trailing: Some(t),
+                    } = it
+                    {
+                        let pad = width - code.chars().count() + 2;
+                        out.push_str(code);
+                        out.extend(std::iter::repeat_n(' ', pad));
+                        out.push_str(t);
+                        out.push('\n');
+                    }
+                }
+                i = j;
+                continue;
+            }
+        }
+        i += 1;
+    }
+    out
+}
+
+pub fn stmt_text(stmt: &Stmt) -> String {
+    match &stmt.kind {
+        StmtKind::Set { name, value } => format!("set {} = {}", name.name, expr_text(value)),
+        StmtKind::Curve { name, lhs, rhs } => match rhs {
+            Some(r) => format!("curve {}: {} = {}", name.name, expr_text(lhs), expr_text(r)),
+            None => format!("curve {}: {}", name.name, expr_text(lhs)),
+        },
+        StmtKind::Let { name, value } => format!("let {} = {}", name.name, expr_text(value)),
+        StmtKind::Wave { name, value } => format!("wave {} = {}", name.name, expr_text(value)),
+        StmtKind::Expect { claim, within } => match within {
+            Some(t) => format!("expect {} within {}", expr_text(claim), expr_text(t)),
+            None => format!("expect {}", expr_text(claim)),
+        },
+        StmtKind::Output {
+            kind,
+            wave,
+            region,
+            path,
+        } => format!(
+            "{} {} over {} to {}",
+            kind.keyword(),
+            wave.name,
+            region.iter().map(axis_text).collect::<Vec<_>>().join(", "),
+            quote(&path.value)
+        ),
+        StmtKind::Error => String::new(),
+    }
+}
+
+fn quote(s: &str) -> String {
+    let mut out = String::from("\"");
+    for c in s.chars() {
+        match c {
+            '"' => out.push_str("\\\""),
+            '\\' => out.push_str("\\\\"),
+            '\n' => out.push_str("\\n"),
+            '\t' => out.push_str("\\t"),
+            c => out.push(c),
+        }
+    }
+    out.push('"');
+    out
+}
+
+fn axis_text(a: &Axis) -> String {
+    match &a.kind {
+        AxisKind::Fixed(v) => format!("{} = {}", a.name.name, expr_text(v)),
+        AxisKind::Range { lo, hi, step } => {
+            let mut s = format!("{} in {}..{}", a.name.name, expr_text(lo), expr_text(hi));
+            if let Some(h) = step {
+                s.push_str(" step ");
+                s.push_str(&expr_text(h));
+            }
+            s
+        }
+    }
+}
+
+pub fn expr_text(e: &Expr) -> String {
+    match &e.kind {
+        ExprKind::Number(t) => t.clone(),
+        ExprKind::Imag(t) if t == "1" => "i".into(),
+        ExprKind::Imag(t) => format!("{t}i"),
+        ExprKind::Bool(b) => b.to_string(),
+        ExprKind::Str(s) => quote(s),
+        ExprKind::Name(n) => n.clone(),
+        ExprKind::Call { func, args } => {
+            let args: Vec<String> = args
+                .iter()
+                .map(|a| match a {
+                    Arg::Positional(e) => expr_text(e),
+                    Arg::Keyword { name, value } => format!("{} = {}", name.name, expr_text(value)),
+                    Arg::Axis(ax) => axis_text(ax),
+                })
+                .collect();
+            format!("{}({})", func.name, args.join(", "))
+        }
+        ExprKind::List(items) => format!(
+            "[{}]",
+            items.iter().map(expr_text).collect::<Vec<_>>().join(", ")
+        ),
+        ExprKind::Point { coords, projective } => {
+            let sep = if *projective { " : " } else { ", " };
+            format!(
+                "({})",
+                coords.iter().map(expr_text).collect::<Vec<_>>().join(sep)
+            )
+        }
+        ExprKind::Paren(inner) => format!("({})", expr_text(inner)),
+        ExprKind::Unary {
+            op: UnOp::Neg,
+            operand,
+        } => format!("-{}", expr_text(operand)),
+        ExprKind::Unary {
+            op: UnOp::Not,
+            operand,
+        } => format!("not {}", expr_text(operand)),
+        ExprKind::Binary { op, lhs, rhs } => {
+            let tight = matches!(op, BinOp::Mul | BinOp::Div | BinOp::Pow);
+            if tight {
+                format!("{}{}{}", expr_text(lhs), op.text(), expr_text(rhs))
+            } else {
+                format!("{} {} {}", expr_text(lhs), op.text(), expr_text(rhs))
+            }
+        }
+        ExprKind::Error => "?".into(),
+    }
+}

@@ -1,0 +1,21 @@
+//! The kelp experiment language: tokens, syntax tree, parser with error recovery,
+//! name resolution and static checks, the canonical formatter, and the one diagnostic
+//! type with its terminal rendering. Knows nothing of LSP or of evaluation.
+
+pub mod ast;
+pub mod builtins;
+pub mod check;
+pub mod diag;
+pub mod fmt;
+pub mod lexer;
+pub mod number;
+pub mod parser;
+pub mod poly;
+pub mod render;
+pub mod span;
+pub mod suggest;
+
+pub use check::{check, Checked, Kind};
+pub use diag::{Code, Diagnostic, Label, Severity};
+pub use parser::{parse, Parsed};
+pub use span::{Encoding, LineCol, LineIndex, Span};

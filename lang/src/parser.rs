@@ -1,0 +1,614 @@
+//! Statement splitting and the chumsky grammar.
+//!
+//! The language is line-oriented: a statement ends at a line break outside brackets, and
+//! a line that starts with a statement keyword always starts a new statement. Each
+//! statement is parsed on its own, so one broken statement never hides the others.
+
+use crate::ast::*;
+use crate::diag::{Code, Diagnostic};
+use crate::lexer::{lex, Token};
+use crate::span::Span;
+use chumsky::error::{RichPattern, RichReason};
+use chumsky::input::{Input as _, ValueInput};
+use chumsky::prelude::*;
+
+pub struct Parsed {
+    pub program: Program,
+    pub diagnostics: Vec<Diagnostic>,
+}
+
+type Extra<'t, 's> = extra::Err<Rich<'t, Token<'s>, SimpleSpan>>;
+
+fn sp(s: SimpleSpan) -> Span {
+    Span::new(s.start, s.end)
+}
+
+/// Parses a whole file. Never fails: broken statements become `StmtKind::Error`.
+pub fn parse(src: &str) -> Parsed {
+    let (tokens, mut diagnostics) = lex(src);
+    let mut comments = Vec::new();
+    let groups = split_statements(&tokens, &mut comments);
+    let sig: Vec<(Token, SimpleSpan)> = groups
+        .iter()
+        .flat_map(|g| tokens[g.clone()].iter())
+        .filter(|(t, _)| !matches!(t, Token::Comment(_) | Token::Newline))
+        .map(|&(t, s)| (t, SimpleSpan::from(s.range())))
+        .collect();
+    // Re-index the groups into the trivia-free token list.
+    let mut stmts = Vec::with_capacity(groups.len());
+    let parser = stmt_parser::<TokInput>();
+    let mut at = 0;
+    for g in &groups {
+        let n = tokens[g.clone()]
+            .iter()
+            .filter(|(t, _)| !matches!(t, Token::Comment(_) | Token::Newline))
+            .count();
+        stmts.push(parse_group(&parser, &sig[at..at + n], &mut diagnostics));
+        at += n;
+    }
+    Parsed {
+        program: Program { stmts, comments },
+        diagnostics,
+    }
+}
+
+type TokInput<'t, 's> =
+    chumsky::input::MappedInput<'t, Token<'s>, SimpleSpan, &'t [(Token<'s>, SimpleSpan)]>;
+
+/// Cuts the token stream into statements: index ranges into `tokens` that contain no
+/// line break outside brackets. Comments are collected on the way.
+fn split_statements(
+    tokens: &[(Token, Span)],
+    comments: &mut Vec<Comment>,
+) -> Vec<std::ops::Range<usize>> {
+    let mut groups = Vec::new();
+    let mut start: Option<usize> = None;
+    let mut depth = 0i32;
+    let mut at_line_start = true;
+    for (i, &(tok, span)) in tokens.iter().enumerate() {
+        match tok {
+            Token::Comment(text) => {
+                comments.push(Comment {
+                    text: text.to_string(),
+                    span,
+                });
+                continue;
+            }
+            Token::Newline => {
+                if depth <= 0 {
+                    if let Some(s) = start.take() {
+                        groups.push(s..i);
+                    }
+                    depth = 0;
+                }
+                at_line_start = true;
+                continue;
+            }
+            _ => {}
+        }
+        if at_line_start && tok.starts_statement() {
+            if let Some(s) = start.take() {
+                groups.push(s..i);
+            }
+            depth = 0;
+        }
+        at_line_start = false;
+        start.get_or_insert(i);
+        match tok {
+            Token::LParen | Token::LBracket => depth += 1,
+            Token::RParen | Token::RBracket => depth -= 1,
+            _ => {}
+        }
+    }
+    if let Some(s) = start {
+        groups.push(s..tokens.len());
+    }
+    groups
+}
+
+const STATEMENT_KEYWORDS: &str = "`set`, `curve`, `let`, `wave`, `expect`, `sample` or `plot`";
+
+fn parse_group<'t, 's: 't, P>(
+    parser: &P,
+    group: &'t [(Token<'s>, SimpleSpan)],
+    diags: &mut Vec<Diagnostic>,
+) -> Stmt
+where
+    P: Parser<'t, TokInput<'t, 's>, StmtKind, Extra<'t, 's>>,
+{
+    let span = sp(group[0].1).join(sp(group[group.len() - 1].1));
+    let error = Stmt {
+        kind: StmtKind::Error,
+        span,
+    };
+    // The lexer has reported these already; parsing would only repeat the complaint.
+    if group
+        .iter()
+        .any(|(t, _)| matches!(t, Token::Error | Token::UnclosedStr(_)))
+    {
+        return error;
+    }
+    let first = group[0];
+    if !first.0.starts_statement() {
+        let mut d = Diagnostic::error(
+            Code::UnknownStatement,
+            sp(first.1),
+            format!(
+                "a statement starts with {STATEMENT_KEYWORDS}, not {}",
+                first.0.describe()
+            ),
+        );
+        if matches!(first.0, Token::Ident(_)) && matches!(group.get(1), Some((Token::Eq, _))) {
+            d = d.with_note(format!(
+                "to name a value, write `let {} = ...`",
+                first.0.text()
+            ));
+        }
+        diags.push(d);
+        return error;
+    }
+    if let Some(d) = unclosed_delimiter(group) {
+        diags.push(d);
+        return error;
+    }
+    let eoi: SimpleSpan = (span.end..span.end).into();
+    let input = group.map(
+        eoi,
+        (|(t, s)| (t, s)) as fn(&'t (Token<'s>, SimpleSpan)) -> (&'t Token<'s>, &'t SimpleSpan),
+    );
+    let (out, errs) = parser.parse(input).into_output_errors();
+    match (out, errs.into_iter().next()) {
+        (Some(kind), None) => Stmt { kind, span },
+        (_, Some(e)) => {
+            diags.push(rich_to_diagnostic(&e, group));
+            error
+        }
+        (None, None) => error,
+    }
+}
+
+fn unclosed_delimiter(group: &[(Token, SimpleSpan)]) -> Option<Diagnostic> {
+    let mut stack: Vec<(Token, SimpleSpan)> = Vec::new();
+    for &(t, s) in group {
+        match t {
+            Token::LParen | Token::LBracket => stack.push((t, s)),
+            Token::RParen | Token::RBracket => {
+                stack.pop();
+            }
+            _ => {}
+        }
+    }
+    let (open, s) = stack.first().copied()?;
+    let close = if open == Token::LParen { ")" } else { "]" };
+    Some(
+        Diagnostic::error(
+            Code::UnclosedDelimiter,
+            sp(s),
+            format!("`{}` is not closed", open.text()),
+        )
+        .with_note(format!("add `{close}` before the end of the statement")),
+    )
+}
+
+fn describe_pattern(p: &RichPattern<Token>) -> String {
+    match p {
+        RichPattern::Token(t) => t.describe(),
+        RichPattern::Label(l) => l.to_string(),
+        RichPattern::EndOfInput => "end of statement".into(),
+        _ => "something else".into(),
+    }
+}
+
+fn rich_to_diagnostic(e: &Rich<Token, SimpleSpan>, group: &[(Token, SimpleSpan)]) -> Diagnostic {
+    let last = sp(group[group.len() - 1].1);
+    let span = if e.span().start >= last.end {
+        last
+    } else {
+        sp(*e.span())
+    };
+    let message = match e.reason() {
+        RichReason::ExpectedFound { expected, found } => {
+            let mut names: Vec<String> = expected.iter().map(describe_pattern).collect();
+            names.sort();
+            names.dedup();
+            if names.iter().any(|n| n == "expression") {
+                names.retain(|n| n != "`-`" && n != "`not`");
+            }
+            // After a complete value, the long list of operators says less than this.
+            let ops = ["`+`", "`*`", "`==`", "end of statement"];
+            if names.len() > 4 && ops.iter().all(|o| names.iter().any(|n| n == o)) {
+                names = vec!["an operator".into(), "the end of the statement".into()];
+            }
+            let found = match found {
+                Some(t) => t.describe(),
+                None => "the end of the statement".into(),
+            };
+            if names.is_empty() {
+                format!("unexpected {found}")
+            } else if names.len() == 1 {
+                format!("expected {}, found {found}", names[0])
+            } else {
+                let last = names.pop().unwrap();
+                format!("expected {} or {last}, found {found}", names.join(", "))
+            }
+        }
+        RichReason::Custom(msg) => msg.to_string(),
+    };
+    let mut d = Diagnostic::error(Code::UnexpectedToken, span, message);
+    // A common slip: juxtaposition is not multiplication.
+    if let Some(i) = group.iter().position(|(_, s)| s.start == e.span().start) {
+        if i > 0
+            && matches!(group[i - 1].0, Token::Int(_) | Token::Decimal(_))
+            && matches!(group[i].0, Token::Ident(_) | Token::LParen)
+        {
+            d = d.with_note(format!(
+                "write multiplication explicitly, e.g. `{}*{}`",
+                group[i - 1].0.text(),
+                group[i].0.text()
+            ));
+        }
+    }
+    d
+}
+
+fn unescape(quoted: &str) -> String {
+    let inner = &quoted[1..quoted.len() - 1];
+    let mut out = String::with_capacity(inner.len());
+    let mut chars = inner.chars();
+    while let Some(c) = chars.next() {
+        if c == '\\' {
+            match chars.next() {
+                Some('n') => out.push('\n'),
+                Some('t') => out.push('\t'),
+                Some(o) => out.push(o),
+                None => {}
+            }
+        } else {
+            out.push(c);
+        }
+    }
+    out
+}
+
+fn ident<'t, 's: 't, I>() -> impl Parser<'t, I, Ident, Extra<'t, 's>> + Clone
+where
+    I: ValueInput<'t, Token = Token<'s>, Span = SimpleSpan>,
+{
+    select! { Token::Ident(s) => s }
+        .map_with(|s: &str, e| Ident {
+            name: s.to_string(),
+            span: sp(e.span()),
+        })
+        .labelled("name")
+}
+
+fn axis<'t, 's: 't, I>(
+    expr: impl Parser<'t, I, Expr, Extra<'t, 's>> + Clone,
+) -> impl Parser<'t, I, Axis, Extra<'t, 's>> + Clone
+where
+    I: ValueInput<'t, Token = Token<'s>, Span = SimpleSpan>,
+{
+    let range = ident()
+        .then_ignore(just(Token::In))
+        .then(expr.clone())
+        .then_ignore(just(Token::DotDot))
+        .then(expr.clone())
+        .then(just(Token::Step).ignore_then(expr.clone()).or_not())
+        .map_with(|(((name, lo), hi), step), e| Axis {
+            name,
+            kind: AxisKind::Range { lo, hi, step },
+            span: sp(e.span()),
+        });
+    let fixed = ident()
+        .then_ignore(just(Token::Eq))
+        .then(expr)
+        .map_with(|(name, v), e| Axis {
+            name,
+            kind: AxisKind::Fixed(v),
+            span: sp(e.span()),
+        });
+    choice((range, fixed)).labelled("axis (`x in A..B` or `t = A`)")
+}
+
+fn expr_parser<'t, 's: 't, I>() -> impl Parser<'t, I, Expr, Extra<'t, 's>> + Clone
+where
+    I: ValueInput<'t, Token = Token<'s>, Span = SimpleSpan>,
+{
+    recursive(|expr| {
+        let literal = select! {
+            Token::Int(s) => ExprKind::Number(s.to_string()),
+            Token::Decimal(s) => ExprKind::Number(s.to_string()),
+            Token::Imag(s) => ExprKind::Imag(s[..s.len() - 1].to_string()),
+            Token::ImagUnit => ExprKind::Imag("1".to_string()),
+            Token::True => ExprKind::Bool(true),
+            Token::False => ExprKind::Bool(false),
+            Token::Str(s) => ExprKind::Str(unescape(s)),
+        }
+        .map_with(|kind, e| Expr {
+            kind,
+            span: sp(e.span()),
+        })
+        .labelled("value");
+
+        let keyword_arg = ident()
+            .then_ignore(just(Token::Eq))
+            .then(expr.clone())
+            .map(|(name, value)| Arg::Keyword { name, value });
+        let range_arg = ident()
+            .then_ignore(just(Token::In))
+            .then(expr.clone())
+            .then_ignore(just(Token::DotDot))
+            .then(expr.clone())
+            .then(just(Token::Step).ignore_then(expr.clone()).or_not())
+            .map_with(|(((name, lo), hi), step), e| {
+                Arg::Axis(Axis {
+                    name,
+                    kind: AxisKind::Range { lo, hi, step },
+                    span: sp(e.span()),
+                })
+            });
+        let arg = choice((range_arg, keyword_arg, expr.clone().map(Arg::Positional)));
+        let call = ident()
+            .then(
+                arg.separated_by(just(Token::Comma))
+                    .allow_trailing()
+                    .collect::<Vec<_>>()
+                    .delimited_by(just(Token::LParen), just(Token::RParen)),
+            )
+            .map_with(|(func, args), e| Expr {
+                kind: ExprKind::Call { func, args },
+                span: sp(e.span()),
+            });
+
+        let name = ident().map(|id| Expr {
+            kind: ExprKind::Name(id.name),
+            span: id.span,
+        });
+
+        let list = expr
+            .clone()
+            .separated_by(just(Token::Comma))
+            .allow_trailing()
+            .collect::<Vec<_>>()
+            .delimited_by(just(Token::LBracket), just(Token::RBracket))
+            .map_with(|items, e| Expr {
+                kind: ExprKind::List(items),
+                span: sp(e.span()),
+            });
+
+        #[derive(Clone)]
+        enum Tail {
+            Affine(Vec<Expr>),
+            Projective(Vec<Expr>),
+        }
+        let tail = choice((
+            just(Token::Comma)
+                .ignore_then(
+                    expr.clone()
+                        .separated_by(just(Token::Comma))
+                        .at_least(1)
+                        .collect::<Vec<_>>(),
+                )
+                .map(Tail::Affine),
+            just(Token::Colon)
+                .ignore_then(
+                    expr.clone()
+                        .separated_by(just(Token::Colon))
+                        .at_least(1)
+                        .collect::<Vec<_>>(),
+                )
+                .map(Tail::Projective),
+        ));
+        let paren = expr
+            .clone()
+            .then(tail.or_not())
+            .delimited_by(just(Token::LParen), just(Token::RParen))
+            .map_with(|(first, tail), e| {
+                let kind = match tail {
+                    None => ExprKind::Paren(Box::new(first)),
+                    Some(Tail::Affine(rest)) => ExprKind::Point {
+                        coords: std::iter::once(first).chain(rest).collect(),
+                        projective: false,
+                    },
+                    Some(Tail::Projective(rest)) => ExprKind::Point {
+                        coords: std::iter::once(first).chain(rest).collect(),
+                        projective: true,
+                    },
+                };
+                Expr {
+                    kind,
+                    span: sp(e.span()),
+                }
+            });
+
+        let atom = choice((literal, call, name, list, paren))
+            .labelled("expression")
+            .boxed();
+
+        // Exponents may be negated (`2^-1`); `-x^2` is `-(x^2)`; `a^b^c` is `a^(b^c)`.
+        let neg_atom = just(Token::Minus)
+            .map_with(|_, e| sp(e.span()))
+            .repeated()
+            .foldr_with(atom.clone(), |s, operand, e| Expr {
+                kind: ExprKind::Unary {
+                    op: UnOp::Neg,
+                    operand: Box::new(operand),
+                },
+                span: s.join(sp(e.span())),
+            });
+        let power = atom
+            .then(
+                just(Token::Caret)
+                    .ignore_then(neg_atom)
+                    .repeated()
+                    .collect::<Vec<_>>(),
+            )
+            .map(|(base, mut exps)| {
+                let mut acc = match exps.pop() {
+                    None => return base,
+                    Some(last) => last,
+                };
+                while let Some(prev) = exps.pop() {
+                    let span = prev.span.join(acc.span);
+                    acc = Expr {
+                        kind: ExprKind::Binary {
+                            op: BinOp::Pow,
+                            lhs: Box::new(prev),
+                            rhs: Box::new(acc),
+                        },
+                        span,
+                    };
+                }
+                let span = base.span.join(acc.span);
+                Expr {
+                    kind: ExprKind::Binary {
+                        op: BinOp::Pow,
+                        lhs: Box::new(base),
+                        rhs: Box::new(acc),
+                    },
+                    span,
+                }
+            });
+        let unary = just(Token::Minus)
+            .map_with(|_, e| sp(e.span()))
+            .repeated()
+            .foldr_with(power, |s, operand, _| {
+                let span = s.join(operand.span);
+                Expr {
+                    kind: ExprKind::Unary {
+                        op: UnOp::Neg,
+                        operand: Box::new(operand),
+                    },
+                    span,
+                }
+            })
+            .boxed();
+
+        fn bin(op: BinOp, lhs: Expr, rhs: Expr) -> Expr {
+            let span = lhs.span.join(rhs.span);
+            Expr {
+                kind: ExprKind::Binary {
+                    op,
+                    lhs: Box::new(lhs),
+                    rhs: Box::new(rhs),
+                },
+                span,
+            }
+        }
+        let product = unary.clone().foldl(
+            choice((
+                just(Token::Star).to(BinOp::Mul),
+                just(Token::Slash).to(BinOp::Div),
+            ))
+            .then(unary)
+            .repeated(),
+            |l, (op, r)| bin(op, l, r),
+        );
+        let sum = product.clone().foldl(
+            choice((
+                just(Token::Plus).to(BinOp::Add),
+                just(Token::Minus).to(BinOp::Sub),
+            ))
+            .then(product)
+            .repeated(),
+            |l, (op, r)| bin(op, l, r),
+        );
+        let cmp_op = choice((
+            just(Token::EqEq).to(BinOp::Eq),
+            just(Token::NotEq).to(BinOp::Ne),
+            just(Token::Le).to(BinOp::Le),
+            just(Token::Ge).to(BinOp::Ge),
+            just(Token::Lt).to(BinOp::Lt),
+            just(Token::Gt).to(BinOp::Gt),
+        ));
+        let comparison = sum
+            .clone()
+            .then(cmp_op.then(sum).or_not())
+            .map(|(l, rest)| match rest {
+                None => l,
+                Some((op, r)) => bin(op, l, r),
+            });
+        let negation = just(Token::Not)
+            .map_with(|_, e| sp(e.span()))
+            .repeated()
+            .foldr_with(comparison, |s, operand, _| {
+                let span = s.join(operand.span);
+                Expr {
+                    kind: ExprKind::Unary {
+                        op: UnOp::Not,
+                        operand: Box::new(operand),
+                    },
+                    span,
+                }
+            });
+        let conj = negation
+            .clone()
+            .foldl(just(Token::And).ignore_then(negation).repeated(), |l, r| {
+                bin(BinOp::And, l, r)
+            });
+        conj.clone()
+            .foldl(just(Token::Or).ignore_then(conj).repeated(), |l, r| {
+                bin(BinOp::Or, l, r)
+            })
+            .boxed()
+    })
+}
+
+fn stmt_parser<'t, 's: 't, I>() -> impl Parser<'t, I, StmtKind, Extra<'t, 's>> + Clone
+where
+    I: ValueInput<'t, Token = Token<'s>, Span = SimpleSpan>,
+{
+    let expr = expr_parser();
+    let set = just(Token::Set)
+        .ignore_then(ident())
+        .then_ignore(just(Token::Eq))
+        .then(expr.clone())
+        .map(|(name, value)| StmtKind::Set { name, value });
+    let curve = just(Token::Curve)
+        .ignore_then(ident())
+        .then_ignore(just(Token::Colon))
+        .then(expr.clone())
+        .then(just(Token::Eq).ignore_then(expr.clone()).or_not())
+        .map(|((name, lhs), rhs)| StmtKind::Curve { name, lhs, rhs });
+    let let_ = just(Token::Let)
+        .ignore_then(ident())
+        .then_ignore(just(Token::Eq))
+        .then(expr.clone())
+        .map(|(name, value)| StmtKind::Let { name, value });
+    let wave = just(Token::Wave)
+        .ignore_then(ident())
+        .then_ignore(just(Token::Eq))
+        .then(expr.clone())
+        .map(|(name, value)| StmtKind::Wave { name, value });
+    let expect = just(Token::Expect)
+        .ignore_then(expr.clone())
+        .then(just(Token::Within).ignore_then(expr.clone()).or_not())
+        .map(|(claim, within)| StmtKind::Expect { claim, within });
+    let path = select! { Token::Str(s) => s }
+        .map_with(|s: &str, e| StrLit {
+            value: unescape(s),
+            span: sp(e.span()),
+        })
+        .labelled("output path string");
+    let output = choice((
+        just(Token::Sample).to(OutputKind::Sample),
+        just(Token::Plot).to(OutputKind::Plot),
+    ))
+    .then(ident())
+    .then_ignore(just(Token::Over))
+    .then(
+        axis(expr)
+            .separated_by(just(Token::Comma))
+            .at_least(1)
+            .collect::<Vec<_>>(),
+    )
+    .then_ignore(just(Token::To))
+    .then(path)
+    .map(|(((kind, wave), region), path)| StmtKind::Output {
+        kind,
+        wave,
+        region,
+        path,
+    });
+    choice((set, curve, let_, wave, expect, output)).then_ignore(end())
+}

@@ -1,0 +1,207 @@
+//! The command line. Exit status: 0 no error diagnostic, 1 an error (failed claims
+//! included), 2 usage or I/O errors.
+
+use clap::{Parser, Subcommand, ValueEnum};
+use kelp_evaluator::{evaluate, json::file_report, Mode};
+use kelp_lang::{check, render::render, Code, Diagnostic, Severity, Span};
+use std::io::IsTerminal;
+use std::path::{Path, PathBuf};
+
+#[derive(Parser)]
+#[command(
+    name = "kelp",
+    version,
+    about = "Check and run kelp experiment files: curves, Riemann matrices, theta functions and KP waves"
+)]
+struct Cli {
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Clone, Copy, ValueEnum, PartialEq, Eq)]
+enum Format {
+    Human,
+    Json,
+}
+
+#[derive(Subcommand)]
+enum Command {
+    /// Evaluate every value and claim; write no outputs.
+    Check {
+        #[arg(required = true)]
+        files: Vec<PathBuf>,
+        #[arg(long, value_enum, default_value = "human")]
+        format: Format,
+        /// Also show information diagnostics and every computed value.
+        #[arg(long, short)]
+        verbose: bool,
+    },
+    /// Evaluate like `check`, then write samples and plots.
+    Run {
+        file: PathBuf,
+        #[arg(long, value_enum, default_value = "human")]
+        format: Format,
+        #[arg(long, short)]
+        verbose: bool,
+    },
+    /// Rewrite files in the canonical layout.
+    Fmt {
+        #[arg(required = true)]
+        files: Vec<PathBuf>,
+        /// Change nothing; exit 1 if a file is not formatted.
+        #[arg(long)]
+        check: bool,
+    },
+    /// Serve experiment files to an editor over stdio (Language Server Protocol).
+    Lsp,
+}
+
+pub fn main() -> i32 {
+    let cli = match Cli::try_parse() {
+        Ok(c) => c,
+        Err(e) => {
+            let code = if e.use_stderr() { 2 } else { 0 };
+            let _ = e.print();
+            return code;
+        }
+    };
+    match cli.command {
+        Command::Check {
+            files,
+            format,
+            verbose,
+        } => evaluate_files(&files, format, verbose, Mode::Check),
+        Command::Run {
+            file,
+            format,
+            verbose,
+        } => evaluate_files(&[file], format, verbose, Mode::Run),
+        Command::Fmt { files, check } => fmt(&files, check),
+        Command::Lsp => {
+            eprintln!("kelp lsp: the language server is not built yet; `kelp check --format json` gives the same diagnostics");
+            2
+        }
+    }
+}
+
+/// Reads a file as text; invalid UTF-8 is replaced and reported at its first byte.
+fn read_source(path: &Path) -> std::io::Result<(String, Option<Diagnostic>)> {
+    let bytes = std::fs::read(path)?;
+    Ok(match String::from_utf8(bytes) {
+        Ok(s) => (s, None),
+        Err(e) => {
+            let at = e.utf8_error().valid_up_to();
+            let s = String::from_utf8_lossy(e.as_bytes()).into_owned();
+            let d = Diagnostic::error(
+                Code::BadToken,
+                Span::new(at, at + 1),
+                "the file is not valid UTF-8 from here on",
+            )
+            .with_note("experiment files are UTF-8 text");
+            (s, Some(d))
+        }
+    })
+}
+
+fn evaluate_files(files: &[PathBuf], format: Format, verbose: bool, mode: Mode) -> i32 {
+    let color = std::io::stderr().is_terminal();
+    let mut reports = Vec::new();
+    let mut any_error = false;
+    for path in files {
+        let shown = path.display().to_string();
+        let (src, utf8) = match read_source(path) {
+            Ok(s) => s,
+            Err(e) => {
+                eprintln!("kelp: cannot read {shown}: {e}");
+                return 2;
+            }
+        };
+        let checked = check(&src);
+        let eval = evaluate(&checked, &src, &mode);
+        let mut diags: Vec<Diagnostic> = utf8
+            .into_iter()
+            .chain(checked.diagnostics.iter().cloned())
+            .chain(eval.diagnostics.iter().cloned())
+            .collect();
+        kelp_lang::diag::sort(&mut diags);
+        any_error |= diags.iter().any(Diagnostic::is_error);
+        match format {
+            Format::Json => reports.push(file_report(&shown, &src, &diags, &eval)),
+            Format::Human => {
+                let visible: Vec<Diagnostic> = diags
+                    .iter()
+                    .filter(|d| verbose || d.severity <= Severity::Warning)
+                    .cloned()
+                    .collect();
+                eprint!("{}", render(&shown, &src, &visible, color));
+                if verbose {
+                    for v in &eval.values {
+                        let bound = if v.value.error_bound > 0.0 {
+                            format!(" (± {:.1e})", v.value.error_bound)
+                        } else {
+                            String::new()
+                        };
+                        println!("  {} = {}{bound}", v.name, v.value.value);
+                    }
+                }
+                let passed = eval
+                    .expectations
+                    .iter()
+                    .filter(|e| e.passed == Some(true))
+                    .count();
+                let failed = eval
+                    .expectations
+                    .iter()
+                    .filter(|e| e.passed == Some(false))
+                    .count();
+                let open = eval.expectations.len() - passed - failed;
+                let errors = diags.iter().filter(|d| d.is_error()).count();
+                let warnings = diags
+                    .iter()
+                    .filter(|d| d.severity == Severity::Warning)
+                    .count();
+                let verdict = if errors == 0 { "ok" } else { "FAILED" };
+                println!(
+                    "{shown}: {verdict}: {passed} claim(s) passed, {failed} failed, {open} not decided; {errors} error(s), {warnings} warning(s)"
+                );
+                for o in &eval.outputs {
+                    println!("  wrote {o}");
+                }
+            }
+        }
+    }
+    if format == Format::Json {
+        let out = if reports.len() == 1 {
+            reports.pop().unwrap()
+        } else {
+            serde_json::Value::Array(reports)
+        };
+        println!("{}", serde_json::to_string_pretty(&out).unwrap());
+    }
+    i32::from(any_error)
+}
+
+fn fmt(files: &[PathBuf], check_only: bool) -> i32 {
+    let mut unformatted = false;
+    for path in files {
+        let src = match std::fs::read_to_string(path) {
+            Ok(s) => s,
+            Err(e) => {
+                eprintln!("kelp: cannot read {}: {e}", path.display());
+                return 2;
+            }
+        };
+        let out = kelp_lang::fmt::format(&src);
+        if out == src {
+            continue;
+        }
+        if check_only {
+            println!("{}: not formatted", path.display());
+            unformatted = true;
+        } else if let Err(e) = std::fs::write(path, &out) {
+            eprintln!("kelp: cannot write {}: {e}", path.display());
+            return 2;
+        }
+    }
+    i32::from(unformatted)
+}
