@@ -64,12 +64,7 @@ fn fail(code: Code, span: Span, msg: impl Into<String>) -> Fail {
 }
 
 pub fn evaluate(checked: &Checked, src: &str, mode: &Mode) -> Evaluation {
-    let mut ev = Evaluator {
-        checked,
-        src,
-        env: HashMap::new(),
-        out: Evaluation::default(),
-    };
+    let mut ev = Evaluator { checked, src, env: HashMap::new(), out: Evaluation::default() };
     for &i in &checked.order {
         ev.statement(i, mode);
     }
@@ -107,18 +102,14 @@ impl Evaluator<'_> {
                 let Some(eq) = self.checked.curves.get(&i) else {
                     return;
                 };
-                let v = Valued::exact(Value::Curve(Rc::new(CurveValue {
-                    name: name.name.clone(),
-                    equation: eq.clone(),
-                })));
+                let v =
+                    Valued::exact(Value::Curve(Rc::new(CurveValue { name: name.name.clone(), equation: eq.clone() })));
                 self.define(name, v);
             }
-            StmtKind::Let { name, value } | StmtKind::Wave { name, value } => {
-                match self.expr(value) {
-                    Ok(v) => self.define(name, v),
-                    Err(f) => self.report(f, name.span, &format!("`{}` is", name.name)),
-                }
-            }
+            StmtKind::Let { name, value } | StmtKind::Wave { name, value } => match self.expr(value) {
+                Ok(v) => self.define(name, v),
+                Err(f) => self.report(f, name.span, &format!("`{}` is", name.name)),
+            },
             StmtKind::Expect { claim, within } => self.expect(stmt.span, claim, within.as_ref()),
             StmtKind::Output { kind, wave, .. } => {
                 if *mode == Mode::Run {
@@ -127,10 +118,7 @@ impl Evaluator<'_> {
                         Some(_) => fail(
                             Code::NotSupported,
                             stmt.span,
-                            format!(
-                                "`{}` is not available yet: KP waves are not computed yet",
-                                kind.keyword()
-                            ),
+                            format!("`{}` is not available yet: KP waves are not computed yet", kind.keyword()),
                         ),
                     };
                     self.report(f, stmt.span, &format!("`{}`", kind.keyword()));
@@ -141,11 +129,7 @@ impl Evaluator<'_> {
     }
 
     fn define(&mut self, name: &Ident, v: Valued) {
-        self.out.values.push(NamedValue {
-            name: name.name.clone(),
-            span: name.span,
-            value: v.clone(),
-        });
+        self.out.values.push(NamedValue { name: name.name.clone(), span: name.span, value: v.clone() });
         self.env.insert(name.name.clone(), v);
     }
 
@@ -153,9 +137,7 @@ impl Evaluator<'_> {
         let claim_text = self.text(claim.span).to_string();
         let top = strip_parens(claim);
         let outcome = match &top.kind {
-            ExprKind::Binary { op, lhs, rhs } if op.is_comparison() => {
-                self.claim_comparison(*op, lhs, rhs, within)
-            }
+            ExprKind::Binary { op, lhs, rhs } if op.is_comparison() => self.claim_comparison(*op, lhs, rhs, within),
             _ => self.expr(claim).and_then(|v| match v.value {
                 Value::Bool(b) => {
                     let why = v.reason.map(|r| format!(" ({r})")).unwrap_or_default();
@@ -169,33 +151,23 @@ impl Evaluator<'_> {
             }),
         };
         match outcome {
-            Ok((Some(true), detail)) => self.out.expectations.push(Expectation {
-                span,
-                passed: Some(true),
-                detail,
-            }),
+            Ok((Some(true), detail)) => self.out.expectations.push(Expectation { span, passed: Some(true), detail }),
             Ok((Some(false), detail)) => {
                 self.out.diagnostics.push(Diagnostic::error(
                     Code::ClaimFailed,
                     span,
                     format!("claim is false: {detail}"),
                 ));
-                self.out.expectations.push(Expectation {
-                    span,
-                    passed: Some(false),
-                    detail,
-                });
+                self.out.expectations.push(Expectation { span, passed: Some(false), detail });
             }
             Ok((None, detail)) => {
                 self.out.diagnostics.push(
                     Diagnostic::error(Code::ClaimUndecided, span, format!("claim cannot be decided: {detail}"))
-                        .with_note("the error bound of the values is larger than the tolerance; raise `within` or the accuracy"),
+                        .with_note(
+                        "the error bound of the values is larger than the tolerance; raise `within` or the accuracy",
+                    ),
                 );
-                self.out.expectations.push(Expectation {
-                    span,
-                    passed: None,
-                    detail,
-                });
+                self.out.expectations.push(Expectation { span, passed: None, detail });
             }
             Err(f) => {
                 let detail = match &f {
@@ -203,11 +175,7 @@ impl Evaluator<'_> {
                     Fail::Dep(n) => format!("uses `{n}`, which has no value"),
                 };
                 self.report(f, span, "claim");
-                self.out.expectations.push(Expectation {
-                    span,
-                    passed: None,
-                    detail,
-                });
+                self.out.expectations.push(Expectation { span, passed: None, detail });
             }
         }
     }
@@ -227,13 +195,7 @@ impl Evaluator<'_> {
                 let v = self.expr(t)?;
                 match &v.value {
                     Value::Num(n) if n.to_real().is_some_and(|x| x > 0.0) => n.to_real().unwrap(),
-                    _ => {
-                        return Err(fail(
-                            Code::BadSettingValue,
-                            t.span,
-                            "a tolerance must be a positive real number",
-                        ))
-                    }
+                    _ => return Err(fail(Code::BadSettingValue, t.span, "a tolerance must be a positive real number")),
                 }
             }
             None => self.checked.settings.tolerance,
@@ -257,11 +219,7 @@ impl Evaluator<'_> {
         let v = self.expr_inner(e)?;
         if let Value::Num(n) = &v.value {
             if !n.is_finite() {
-                return Err(fail(
-                    Code::EvalFailed,
-                    e.span,
-                    "the result is not a finite number",
-                ));
+                return Err(fail(Code::EvalFailed, e.span, "the result is not a finite number"));
             }
         }
         Ok(v)
@@ -274,48 +232,31 @@ impl Evaluator<'_> {
                 .map_err(|m| fail(Code::NumberTooLarge, e.span, m)),
             ExprKind::Imag(t) => {
                 let q = parse_exact(t).map_err(|m| fail(Code::NumberTooLarge, e.span, m))?;
-                Ok(Valued::exact(Value::Num(Num::Complex(
-                    num_complex::Complex64::new(0.0, kelp_lang::number::to_f64(&q)),
-                ))))
+                Ok(Valued::exact(Value::Num(Num::Complex(num_complex::Complex64::new(
+                    0.0,
+                    kelp_lang::number::to_f64(&q),
+                )))))
             }
             ExprKind::Bool(b) => Ok(Valued::exact(Value::Bool(*b))),
             ExprKind::Str(s) => Ok(Valued::exact(Value::Str(s.clone()))),
             ExprKind::Name(n) => self.env.get(n).cloned().ok_or_else(|| Fail::Dep(n.clone())),
             ExprKind::Paren(inner) => self.expr(inner),
-            ExprKind::Error => Err(fail(
-                Code::EvalFailed,
-                e.span,
-                "this expression did not parse",
-            )),
+            ExprKind::Error => Err(fail(Code::EvalFailed, e.span, "this expression did not parse")),
             ExprKind::Point { coords, projective } => {
                 let mut out = Vec::new();
                 for c in coords {
                     out.push(self.number(c)?.0);
                 }
-                Ok(Valued::exact(Value::Point {
-                    coords: out,
-                    projective: *projective,
-                }))
+                Ok(Valued::exact(Value::Point { coords: out, projective: *projective }))
             }
             ExprKind::List(items) => self.list(items),
-            ExprKind::Unary {
-                op: UnOp::Neg,
-                operand,
-            } => {
+            ExprKind::Unary { op: UnOp::Neg, operand } => {
                 let v = self.expr(operand)?;
-                let value = map_nums(&v.value, &|n| n.neg()).ok_or_else(|| {
-                    fail(
-                        Code::WrongKind,
-                        e.span,
-                        "`-` applies to numbers, vectors and matrices",
-                    )
-                })?;
+                let value = map_nums(&v.value, &|n| n.neg())
+                    .ok_or_else(|| fail(Code::WrongKind, e.span, "`-` applies to numbers, vectors and matrices"))?;
                 Ok(Valued { value, ..v })
             }
-            ExprKind::Unary {
-                op: UnOp::Not,
-                operand,
-            } => match self.expr(operand)?.value {
+            ExprKind::Unary { op: UnOp::Not, operand } => match self.expr(operand)?.value {
                 Value::Bool(b) => Ok(Valued::exact(Value::Bool(!b))),
                 _ => Err(fail(Code::WrongKind, e.span, "`not` applies to true/false")),
             },
@@ -359,54 +300,22 @@ impl Evaluator<'_> {
         let v = self.expr(e)?;
         match v.value {
             Value::Num(n) => Ok((n, v.error_bound)),
-            other => Err(fail(
-                Code::WrongKind,
-                e.span,
-                format!("expected a number, found a {}", other.type_name()),
-            )),
+            other => Err(fail(Code::WrongKind, e.span, format!("expected a number, found a {}", other.type_name()))),
         }
     }
 
     fn list(&mut self, items: &[Expr]) -> R {
-        let vals: Vec<Valued> = items
-            .iter()
-            .map(|i| self.expr(i))
-            .collect::<Result<_, _>>()?;
+        let vals: Vec<Valued> = items.iter().map(|i| self.expr(i)).collect::<Result<_, _>>()?;
         let err = vals.iter().map(|v| v.error_bound).fold(0.0, f64::max);
         if vals.iter().all(|v| matches!(v.value, Value::Num(_))) {
-            let nums = vals
-                .into_iter()
-                .map(|v| {
-                    if let Value::Num(n) = v.value {
-                        n
-                    } else {
-                        unreachable!()
-                    }
-                })
-                .collect();
-            return Ok(Valued {
-                value: Value::Vector(nums),
-                error_bound: err,
-                reason: None,
-            });
+            let nums = vals.into_iter().map(|v| if let Value::Num(n) = v.value { n } else { unreachable!() }).collect();
+            return Ok(Valued { value: Value::Vector(nums), error_bound: err, reason: None });
         }
         if !vals.is_empty() && vals.iter().all(|v| matches!(v.value, Value::Vector(_))) {
-            let rows: Vec<Vec<Num>> = vals
-                .into_iter()
-                .map(|v| {
-                    if let Value::Vector(r) = v.value {
-                        r
-                    } else {
-                        unreachable!()
-                    }
-                })
-                .collect();
+            let rows: Vec<Vec<Num>> =
+                vals.into_iter().map(|v| if let Value::Vector(r) = v.value { r } else { unreachable!() }).collect();
             if rows.iter().all(|r| r.len() == rows[0].len()) {
-                return Ok(Valued {
-                    value: Value::Matrix(rows),
-                    error_bound: err,
-                    reason: None,
-                });
+                return Ok(Valued { value: Value::Matrix(rows), error_bound: err, reason: None });
             }
             return Err(fail(
                 Code::RaggedMatrix,
@@ -414,40 +323,22 @@ impl Evaluator<'_> {
                 "matrix rows must have equal length",
             ));
         }
-        Ok(Valued {
-            value: Value::List(vals.into_iter().map(|v| v.value).collect()),
-            error_bound: err,
-            reason: None,
-        })
+        Ok(Valued { value: Value::List(vals.into_iter().map(|v| v.value).collect()), error_bound: err, reason: None })
     }
 
     fn call(&mut self, span: Span, func: &Ident, args: &[Arg]) -> R {
-        let positional: Vec<&Expr> = args
-            .iter()
-            .filter_map(|a| {
-                if let Arg::Positional(e) = a {
-                    Some(e)
-                } else {
-                    None
-                }
-            })
-            .collect();
+        let positional: Vec<&Expr> =
+            args.iter().filter_map(|a| if let Arg::Positional(e) = a { Some(e) } else { None }).collect();
         let first = |this: &mut Self| -> R {
-            let e = positional.first().ok_or_else(|| {
-                fail(
-                    Code::MissingArgument,
-                    func.span,
-                    format!("`{}` needs an argument", func.name),
-                )
-            })?;
+            let e = positional
+                .first()
+                .ok_or_else(|| fail(Code::MissingArgument, func.span, format!("`{}` needs an argument", func.name)))?;
             this.expr(e)
         };
         let arg_span = positional.first().map_or(span, |e| e.span);
         match func.name.as_str() {
             "degree" => match first(self)?.value {
-                Value::Curve(c) => Ok(Valued::exact(Value::Num(Num::int(
-                    c.equation.degree as i64,
-                )))),
+                Value::Curve(c) => Ok(Valued::exact(Value::Num(Num::int(c.equation.degree as i64)))),
                 _ => Err(fail(Code::WrongKind, arg_span, "`degree` needs a curve")),
             },
             "count" => {
@@ -455,64 +346,36 @@ impl Evaluator<'_> {
                     Value::Vector(v) => v.len(),
                     Value::Matrix(m) => m.len(),
                     Value::List(l) => l.len(),
-                    _ => {
-                        return Err(fail(
-                            Code::WrongKind,
-                            arg_span,
-                            "`count` needs a list or vector",
-                        ))
-                    }
+                    _ => return Err(fail(Code::WrongKind, arg_span, "`count` needs a list or vector")),
                 };
                 Ok(Valued::exact(Value::Num(Num::int(n as i64))))
             }
             "abs" | "re" | "im" => {
                 let v = first(self)?;
                 let Value::Num(n) = &v.value else {
-                    return Err(fail(
-                        Code::WrongKind,
-                        arg_span,
-                        format!("`{}` needs a number", func.name),
-                    ));
+                    return Err(fail(Code::WrongKind, arg_span, format!("`{}` needs a number", func.name)));
                 };
                 let r = match func.name.as_str() {
                     "abs" => n.abs(),
                     "re" => n.re(),
                     _ => n.im(),
                 };
-                Ok(Valued {
-                    value: Value::Num(r),
-                    ..v
-                })
+                Ok(Valued { value: Value::Num(r), ..v })
             }
             "is_riemann" => {
                 let v = first(self)?;
                 let Value::Matrix(m) = &v.value else {
-                    return Err(fail(
-                        Code::WrongKind,
-                        arg_span,
-                        "`is_riemann` needs a square matrix",
-                    ));
+                    return Err(fail(Code::WrongKind, arg_span, "`is_riemann` needs a square matrix"));
                 };
                 if m.len() != m[0].len() {
                     return Err(fail(
                         Code::ShapeMismatch,
                         arg_span,
-                        format!(
-                            "`is_riemann` needs a square matrix; this is {} x {}",
-                            m.len(),
-                            m[0].len()
-                        ),
+                        format!("`is_riemann` needs a square matrix; this is {} x {}", m.len(), m[0].len()),
                     ));
                 }
-                let r = riemann_check(
-                    &to_complex_matrix(m),
-                    self.checked.settings.tolerance + v.error_bound,
-                );
-                Ok(Valued {
-                    value: Value::Bool(r.holds()),
-                    error_bound: 0.0,
-                    reason: Some(r.reason()),
-                })
+                let r = riemann_check(&to_complex_matrix(m), self.checked.settings.tolerance + v.error_bound);
+                Ok(Valued { value: Value::Bool(r.holds()), error_bound: 0.0, reason: Some(r.reason()) })
             }
             name => Err(fail(Code::NotSupported, span, not_supported(name))),
         }
@@ -562,10 +425,7 @@ fn entries(v: &Value) -> Option<((usize, usize, u8), Vec<&Num>)> {
     match v {
         Value::Num(n) => Some(((1, 1, 0), vec![n])),
         Value::Vector(x) => Some(((x.len(), 1, 1), x.iter().collect())),
-        Value::Matrix(m) => Some((
-            (m.len(), m.first().map_or(0, Vec::len), 2),
-            m.iter().flatten().collect(),
-        )),
+        Value::Matrix(m) => Some(((m.len(), m.first().map_or(0, Vec::len), 2), m.iter().flatten().collect())),
         _ => None,
     }
 }
@@ -581,47 +441,26 @@ struct Decision {
 /// error bounds cannot change the answer.
 fn compare(op: BinOp, l: &Valued, r: &Valued, tol: f64, span: Span) -> Result<Decision, Fail> {
     let err = l.error_bound + r.error_bound;
-    let negate = |d: Decision| Decision {
-        holds: d.holds.map(|b| !b),
-        distance: d.distance,
-    };
+    let negate = |d: Decision| Decision { holds: d.holds.map(|b| !b), distance: d.distance };
     match op {
         BinOp::Eq | BinOp::Ne => {
             let d = match (&l.value, &r.value) {
-                (Value::Bool(a), Value::Bool(b)) => Decision {
-                    holds: Some(a == b),
-                    distance: None,
-                },
+                (Value::Bool(a), Value::Bool(b)) => Decision { holds: Some(a == b), distance: None },
                 (a, b) => {
                     let (Some((sa, ea)), Some((sb, eb))) = (entries(a), entries(b)) else {
                         return Err(fail(
                             Code::WrongKind,
                             span,
-                            format!(
-                                "cannot compare a {} with a {}",
-                                a.type_name(),
-                                b.type_name()
-                            ),
+                            format!("cannot compare a {} with a {}", a.type_name(), b.type_name()),
                         ));
                     };
                     if sa != sb {
-                        return Err(fail(
-                            Code::ShapeMismatch,
-                            span,
-                            "the two sides have different shapes",
-                        ));
+                        return Err(fail(Code::ShapeMismatch, span, "the two sides have different shapes"));
                     }
                     if ea.iter().chain(eb.iter()).all(|n| n.is_exact()) {
-                        Decision {
-                            holds: Some(ea == eb),
-                            distance: None,
-                        }
+                        Decision { holds: Some(ea == eb), distance: None }
                     } else {
-                        let dist = ea
-                            .iter()
-                            .zip(&eb)
-                            .map(|(x, y)| x.distance(y))
-                            .fold(0.0, f64::max);
+                        let dist = ea.iter().zip(&eb).map(|(x, y)| x.distance(y)).fold(0.0, f64::max);
                         let holds = if dist + err <= tol {
                             Some(true)
                         } else if dist - err > tol {
@@ -629,10 +468,7 @@ fn compare(op: BinOp, l: &Valued, r: &Valued, tol: f64, span: Span) -> Result<De
                         } else {
                             None
                         };
-                        Decision {
-                            holds,
-                            distance: Some(dist),
-                        }
+                        Decision { holds, distance: Some(dist) }
                     }
                 }
             };
@@ -640,11 +476,7 @@ fn compare(op: BinOp, l: &Valued, r: &Valued, tol: f64, span: Span) -> Result<De
         }
         _ => {
             let (Value::Num(a), Value::Num(b)) = (&l.value, &r.value) else {
-                return Err(fail(
-                    Code::WrongKind,
-                    span,
-                    "`<`, `<=`, `>`, `>=` compare real numbers",
-                ));
+                return Err(fail(Code::WrongKind, span, "`<`, `<=`, `>`, `>=` compare real numbers"));
             };
             let holds = match (a, b) {
                 (Num::Exact(x), Num::Exact(y)) => Some(match op {
@@ -655,7 +487,11 @@ fn compare(op: BinOp, l: &Valued, r: &Valued, tol: f64, span: Span) -> Result<De
                 }),
                 _ => {
                     let (Some(x), Some(y)) = (a.to_real(), b.to_real()) else {
-                        return Err(fail(Code::WrongKind, span, "complex numbers have no order; compare `abs(...)`, `re(...)` or `im(...)`"));
+                        return Err(fail(
+                            Code::WrongKind,
+                            span,
+                            "complex numbers have no order; compare `abs(...)`, `re(...)` or `im(...)`",
+                        ));
                     };
                     // (y - x) decides `<` when it clears the error bounds.
                     let gap = match op {
@@ -674,10 +510,7 @@ fn compare(op: BinOp, l: &Valued, r: &Valued, tol: f64, span: Span) -> Result<De
                     }
                 }
             };
-            Ok(Decision {
-                holds,
-                distance: None,
-            })
+            Ok(Decision { holds, distance: None })
         }
     }
 }
@@ -688,12 +521,7 @@ fn arith(op: BinOp, l: &Valued, r: &Valued, span: Span) -> R {
         fail(
             Code::WrongKind,
             span,
-            format!(
-                "`{}` does not apply to a {} and a {}",
-                op.text(),
-                l.value.type_name(),
-                r.value.type_name()
-            ),
+            format!("`{}` does not apply to a {} and a {}", op.text(), l.value.type_name(), r.value.type_name()),
         )
     };
     let scalar = |a: &Num, b: &Num| -> Result<Num, Fail> {
@@ -710,36 +538,18 @@ fn arith(op: BinOp, l: &Valued, r: &Valued, span: Span) -> R {
         (Value::Num(a), Value::Num(b)) => Value::Num(scalar(a, b)?),
         (Value::Vector(a), Value::Vector(b)) if matches!(op, BinOp::Add | BinOp::Sub) => {
             if a.len() != b.len() {
-                return Err(fail(
-                    Code::ShapeMismatch,
-                    span,
-                    format!("vectors of lengths {} and {}", a.len(), b.len()),
-                ));
+                return Err(fail(Code::ShapeMismatch, span, format!("vectors of lengths {} and {}", a.len(), b.len())));
             }
-            Value::Vector(
-                a.iter()
-                    .zip(b)
-                    .map(|(x, y)| scalar(x, y))
-                    .collect::<Result<_, _>>()?,
-            )
+            Value::Vector(a.iter().zip(b).map(|(x, y)| scalar(x, y)).collect::<Result<_, _>>()?)
         }
         (Value::Matrix(a), Value::Matrix(b)) if matches!(op, BinOp::Add | BinOp::Sub) => {
             if a.len() != b.len() || a[0].len() != b[0].len() {
-                return Err(fail(
-                    Code::ShapeMismatch,
-                    span,
-                    "matrices of different sizes",
-                ));
+                return Err(fail(Code::ShapeMismatch, span, "matrices of different sizes"));
             }
             Value::Matrix(
                 a.iter()
                     .zip(b)
-                    .map(|(ra, rb)| {
-                        ra.iter()
-                            .zip(rb)
-                            .map(|(x, y)| scalar(x, y))
-                            .collect::<Result<_, _>>()
-                    })
+                    .map(|(ra, rb)| ra.iter().zip(rb).map(|(x, y)| scalar(x, y)).collect::<Result<_, _>>())
                     .collect::<Result<_, _>>()?,
             )
         }
@@ -757,45 +567,25 @@ fn arith(op: BinOp, l: &Valued, r: &Valued, span: Span) -> R {
         }
         (Value::Matrix(a), Value::Matrix(b)) if op == BinOp::Mul => {
             if a[0].len() != b.len() {
-                return Err(fail(
-                    Code::ShapeMismatch,
-                    span,
-                    "the matrix sizes do not fit for a product",
-                ));
+                return Err(fail(Code::ShapeMismatch, span, "the matrix sizes do not fit for a product"));
             }
             Value::Matrix(
-                a.iter()
-                    .map(|row| {
-                        (0..b[0].len())
-                            .map(|j| dot(row, b.iter().map(|br| &br[j])))
-                            .collect()
-                    })
-                    .collect(),
+                a.iter().map(|row| (0..b[0].len()).map(|j| dot(row, b.iter().map(|br| &br[j]))).collect()).collect(),
             )
         }
         (Value::Matrix(a), Value::Vector(x)) if op == BinOp::Mul => {
             if a[0].len() != x.len() {
-                return Err(fail(
-                    Code::ShapeMismatch,
-                    span,
-                    "the matrix and vector sizes do not fit for a product",
-                ));
+                return Err(fail(Code::ShapeMismatch, span, "the matrix and vector sizes do not fit for a product"));
             }
             Value::Vector(a.iter().map(|row| dot(row, x.iter())).collect())
         }
         _ => return Err(bad()),
     };
-    Ok(Valued {
-        value,
-        error_bound: err,
-        reason: None,
-    })
+    Ok(Valued { value, error_bound: err, reason: None })
 }
 
 fn dot<'a>(row: &[Num], col: impl Iterator<Item = &'a Num>) -> Num {
-    row.iter()
-        .zip(col)
-        .fold(Num::int(0), |acc, (a, b)| acc.add(&a.mul(b)))
+    row.iter().zip(col).fold(Num::int(0), |acc, (a, b)| acc.add(&a.mul(b)))
 }
 
 /// First-order propagation of error bounds through arithmetic.
@@ -803,11 +593,7 @@ fn propagate(op: BinOp, l: &Valued, r: &Valued) -> f64 {
     if l.error_bound == 0.0 && r.error_bound == 0.0 {
         return 0.0;
     }
-    let size = |v: &Value| {
-        entries(v).map_or(0.0, |(_, e)| {
-            e.iter().map(|n| n.to_complex().norm()).fold(0.0, f64::max)
-        })
-    };
+    let size = |v: &Value| entries(v).map_or(0.0, |(_, e)| e.iter().map(|n| n.to_complex().norm()).fold(0.0, f64::max));
     let (a, b) = (size(&l.value), size(&r.value));
     let (ea, eb) = (l.error_bound, r.error_bound);
     match op {

@@ -64,10 +64,7 @@ pub fn value_json(v: &Value) -> (&'static str, J) {
         Value::Vector(x) => ("vector", entries_json(x, any_complex(x.iter()))),
         Value::Matrix(m) => {
             let c = any_complex(m.iter().flatten());
-            (
-                "matrix",
-                J::Array(m.iter().map(|r| entries_json(r, c)).collect()),
-            )
+            ("matrix", J::Array(m.iter().map(|r| entries_json(r, c)).collect()))
         }
         Value::List(l) => (
             "list",
@@ -116,12 +113,8 @@ pub fn diagnostic_json(idx: &LineIndex, d: &Diagnostic) -> J {
         o["notes"] = json!(d.notes);
     }
     if !d.labels.is_empty() {
-        o["related"] = J::Array(
-            d.labels
-                .iter()
-                .map(|l| json!({"message": l.message, "range": range(idx, l.span)}))
-                .collect(),
-        );
+        o["related"] =
+            J::Array(d.labels.iter().map(|l| json!({"message": l.message, "range": range(idx, l.span)})).collect());
     }
     o
 }

@@ -51,19 +51,10 @@ pub fn riemann_check(m: &DMatrix<Complex64>, tol: f64) -> RiemannCheck {
         }
     }
     let y = DMatrix::from_fn(n, n, |i, j| 0.5 * (m[(i, j)].im + m[(j, i)].im));
-    let mut eig: Vec<f64> = SymmetricEigen::new(y.clone())
-        .eigenvalues
-        .iter()
-        .copied()
-        .collect();
+    let mut eig: Vec<f64> = SymmetricEigen::new(y.clone()).eigenvalues.iter().copied().collect();
     eig.sort_by(f64::total_cmp);
     let pd = n > 0 && y.cholesky().is_some() && eig.first().is_some_and(|&e| e > 0.0);
-    RiemannCheck {
-        symmetry_defect: defect,
-        imag_eigenvalues: eig,
-        symmetric: defect <= tol,
-        positive_definite: pd,
-    }
+    RiemannCheck { symmetry_defect: defect, imag_eigenvalues: eig, symmetric: defect <= tol, positive_definite: pd }
 }
 
 #[cfg(test)]
@@ -77,15 +68,13 @@ mod tests {
     #[test]
     fn eigenvalues_of_a_known_imaginary_part() {
         // Im = [[2, 1], [1, 2]] has eigenvalues 1 and 3 (common practice, no source).
-        let m =
-            DMatrix::from_row_slice(2, 2, &[c(0.5, 2.0), c(0.0, 1.0), c(0.0, 1.0), c(0.1, 2.0)]);
+        let m = DMatrix::from_row_slice(2, 2, &[c(0.5, 2.0), c(0.0, 1.0), c(0.0, 1.0), c(0.1, 2.0)]);
         let r = riemann_check(&m, 1e-12);
         assert!(r.holds());
         assert!((r.imag_eigenvalues[0] - 1.0).abs() < 1e-12);
         assert!((r.imag_eigenvalues[1] - 3.0).abs() < 1e-12);
         // Im = [[1, 2], [2, 1]] has eigenvalues -1 and 3.
-        let bad =
-            DMatrix::from_row_slice(2, 2, &[c(0.0, 1.0), c(0.0, 2.0), c(0.0, 2.0), c(0.0, 1.0)]);
+        let bad = DMatrix::from_row_slice(2, 2, &[c(0.0, 1.0), c(0.0, 2.0), c(0.0, 2.0), c(0.0, 1.0)]);
         let r = riemann_check(&bad, 1e-12);
         assert!(!r.holds());
         assert!((r.imag_eigenvalues[0] + 1.0).abs() < 1e-12);

@@ -74,16 +74,9 @@ impl Num {
             Num::Complex(c)
         }
     }
-    fn float_op(
-        a: &Num,
-        b: &Num,
-        f: impl Fn(Complex64, Complex64) -> Complex64,
-        g: impl Fn(f64, f64) -> f64,
-    ) -> Num {
+    fn float_op(a: &Num, b: &Num, f: impl Fn(Complex64, Complex64) -> Complex64, g: impl Fn(f64, f64) -> f64) -> Num {
         match (a.to_real(), b.to_real(), a, b) {
-            (Some(x), Some(y), l, r)
-                if !matches!(l, Num::Complex(_)) && !matches!(r, Num::Complex(_)) =>
-            {
+            (Some(x), Some(y), l, r) if !matches!(l, Num::Complex(_)) && !matches!(r, Num::Complex(_)) => {
                 Num::Real(g(x, y))
             }
             _ => Num::tidy(f(a.to_complex(), b.to_complex())),
@@ -196,10 +189,7 @@ mod tests {
         let a = Num::Exact(BigRational::new(1.into(), 3.into()));
         let b = Num::Exact(BigRational::new(1.into(), 6.into()));
         assert_eq!(a.add(&b), Num::Exact(BigRational::new(1.into(), 2.into())));
-        assert_eq!(
-            Num::int(2).pow(&Num::int(-2)).unwrap(),
-            Num::Exact(BigRational::new(1.into(), 4.into()))
-        );
+        assert_eq!(Num::int(2).pow(&Num::int(-2)).unwrap(), Num::Exact(BigRational::new(1.into(), 4.into())));
         assert!(Num::int(1).div(&Num::int(0)).is_err());
     }
 

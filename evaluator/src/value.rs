@@ -34,11 +34,7 @@ pub struct Valued {
 
 impl Valued {
     pub fn exact(value: Value) -> Self {
-        Valued {
-            value,
-            error_bound: 0.0,
-            reason: None,
-        }
+        Valued { value, error_bound: 0.0, reason: None }
     }
 }
 
@@ -71,27 +67,14 @@ impl fmt::Display for Value {
             Value::Bool(b) => write!(f, "{b}"),
             Value::Str(s) => write!(f, "{s:?}"),
             Value::Vector(v) => write!(f, "[{}]", join(v.iter().map(|n| n.to_string()))),
-            Value::Matrix(m) => write!(
-                f,
-                "[{}]",
-                join(
-                    m.iter()
-                        .map(|r| format!("[{}]", join(r.iter().map(|n| n.to_string()))))
-                )
-            ),
+            Value::Matrix(m) => {
+                write!(f, "[{}]", join(m.iter().map(|r| format!("[{}]", join(r.iter().map(|n| n.to_string()))))))
+            }
             Value::List(l) => write!(f, "[{}]", join(l.iter().map(|v| v.to_string()))),
             Value::Curve(c) => write!(f, "curve {}: {} = 0", c.name, c.equation.poly),
             Value::Point { coords, projective } => {
                 let sep = if *projective { " : " } else { ", " };
-                write!(
-                    f,
-                    "({})",
-                    coords
-                        .iter()
-                        .map(|n| n.to_string())
-                        .collect::<Vec<_>>()
-                        .join(sep)
-                )
+                write!(f, "({})", coords.iter().map(|n| n.to_string()).collect::<Vec<_>>().join(sep))
             }
         }
     }

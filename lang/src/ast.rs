@@ -33,11 +33,7 @@ pub enum StmtKind {
     /// `set NAME = EXPR`
     Set { name: Ident, value: Expr },
     /// `curve NAME: LHS [= RHS]`
-    Curve {
-        name: Ident,
-        lhs: Expr,
-        rhs: Option<Expr>,
-    },
+    Curve { name: Ident, lhs: Expr, rhs: Option<Expr> },
     /// `let NAME = EXPR`
     Let { name: Ident, value: Expr },
     /// `wave NAME = CALL`
@@ -45,12 +41,7 @@ pub enum StmtKind {
     /// `expect CLAIM [within TOL]`
     Expect { claim: Expr, within: Option<Expr> },
     /// `sample WAVE over REGION to PATH` and `plot ...`
-    Output {
-        kind: OutputKind,
-        wave: Ident,
-        region: Vec<Axis>,
-        path: StrLit,
-    },
+    Output { kind: OutputKind, wave: Ident, region: Vec<Axis>, path: StrLit },
     /// A statement that did not parse; its diagnostic is already reported.
     Error,
 }
@@ -88,11 +79,7 @@ pub struct Axis {
 #[derive(Clone, Debug, PartialEq)]
 pub enum AxisKind {
     Fixed(Expr),
-    Range {
-        lo: Expr,
-        hi: Expr,
-        step: Option<Expr>,
-    },
+    Range { lo: Expr, hi: Expr, step: Option<Expr> },
 }
 
 #[derive(Clone, Debug, PartialEq)]
@@ -212,9 +199,7 @@ impl Stmt {
     /// The name a statement defines, if any.
     pub fn defined_name(&self) -> Option<&Ident> {
         match &self.kind {
-            StmtKind::Curve { name, .. }
-            | StmtKind::Let { name, .. }
-            | StmtKind::Wave { name, .. } => Some(name),
+            StmtKind::Curve { name, .. } | StmtKind::Let { name, .. } | StmtKind::Wave { name, .. } => Some(name),
             _ => None,
         }
     }
@@ -233,9 +218,7 @@ impl Expr {
                     }
                 }
             }
-            ExprKind::List(items) | ExprKind::Point { coords: items, .. } => {
-                items.iter().for_each(|e| e.walk(f))
-            }
+            ExprKind::List(items) | ExprKind::Point { coords: items, .. } => items.iter().for_each(|e| e.walk(f)),
             ExprKind::Paren(e) | ExprKind::Unary { operand: e, .. } => e.walk(f),
             ExprKind::Binary { lhs, rhs, .. } => {
                 lhs.walk(f);

@@ -63,18 +63,10 @@ impl Builtin {
 }
 
 const fn p(name: &'static str, kind: ParamKind) -> Param {
-    Param {
-        name,
-        kind,
-        required: true,
-    }
+    Param { name, kind, required: true }
 }
 const fn opt(name: &'static str, kind: ParamKind) -> Param {
-    Param {
-        name,
-        kind,
-        required: false,
-    }
+    Param { name, kind, required: false }
 }
 
 use ParamKind as K;
@@ -259,14 +251,6 @@ pub fn lookup(name: &str) -> Option<&'static Builtin> {
 
 /// The settings `set` accepts, with their default and meaning.
 pub const SETTINGS: &[(&str, f64, &str)] = &[
-    (
-        "tolerance",
-        1e-10,
-        "default absolute tolerance of `==` between numerical values",
-    ),
-    (
-        "accuracy",
-        1e-12,
-        "requested absolute accuracy of numerical results (theta values, periods)",
-    ),
+    ("tolerance", 1e-10, "default absolute tolerance of `==` between numerical values"),
+    ("accuracy", 1e-12, "requested absolute accuracy of numerical results (theta values, periods)"),
 ];

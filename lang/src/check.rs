@@ -50,9 +50,7 @@ impl Kind {
             Kind::List => "a list".into(),
             Kind::Curve => "a curve".into(),
             Kind::Wave => "a wave".into(),
-            Kind::Point {
-                projective: true, ..
-            } => "a projective point".into(),
+            Kind::Point { projective: true, .. } => "a projective point".into(),
             Kind::Point { .. } => "a point".into(),
             Kind::Unknown => "a value".into(),
         }
@@ -101,10 +99,7 @@ pub struct Settings {
 
 impl Default for Settings {
     fn default() -> Self {
-        Settings {
-            tolerance: SETTINGS[0].1,
-            accuracy: SETTINGS[1].1,
-        }
+        Settings { tolerance: SETTINGS[0].1, accuracy: SETTINGS[1].1 }
     }
 }
 
@@ -143,12 +138,7 @@ pub fn check(src: &str) -> Checked {
         references: Vec::new(),
         curves: HashMap::new(),
         settings: Settings::default(),
-        broken: parsed
-            .program
-            .stmts
-            .iter()
-            .map(|s| matches!(s.kind, StmtKind::Error))
-            .collect(),
+        broken: parsed.program.stmts.iter().map(|s| matches!(s.kind, StmtKind::Error)).collect(),
     };
     let program = parsed.program;
     c.collect_definitions(&program);
@@ -167,12 +157,7 @@ pub fn check(src: &str) -> Checked {
                 }
                 rest.push(i);
             }
-            StmtKind::Output {
-                kind,
-                wave,
-                region,
-                path,
-            } => {
+            StmtKind::Output { kind, wave, region, path } => {
                 if !c.check_output(*kind, wave, region, path) {
                     c.broken[i] = true;
                 }
@@ -181,11 +166,7 @@ pub fn check(src: &str) -> Checked {
             _ => {}
         }
     }
-    let order = def_order
-        .into_iter()
-        .chain(rest)
-        .filter(|&i| !c.broken[i])
-        .collect();
+    let order = def_order.into_iter().chain(rest).filter(|&i| !c.broken[i]).collect();
     let mut diagnostics = c.diags;
     crate::diag::sort(&mut diagnostics);
     Checked {
@@ -243,13 +224,10 @@ impl Checker {
             };
             if let Some(&prev) = self.by_name.get(&name.name) {
                 let prev_span = self.symbols[prev].span;
-                let d = Diagnostic::error(
-                    Code::DuplicateName,
-                    name.span,
-                    format!("`{}` is already defined", name.name),
-                )
-                .with_label(prev_span, "first defined here")
-                .with_note("each name is defined once per file; rename one of them");
+                let d =
+                    Diagnostic::error(Code::DuplicateName, name.span, format!("`{}` is already defined", name.name))
+                        .with_label(prev_span, "first defined here")
+                        .with_note("each name is defined once per file; rename one of them");
                 self.diags.push(d);
                 self.broken[i] = true;
                 continue;
@@ -260,13 +238,7 @@ impl Checker {
                 DefKind::Let => Kind::Unknown,
             };
             self.by_name.insert(name.name.clone(), self.symbols.len());
-            self.symbols.push(Symbol {
-                name: name.name.clone(),
-                def,
-                span: name.span,
-                stmt: i,
-                kind,
-            });
+            self.symbols.push(Symbol { name: name.name.clone(), def, span: name.span, stmt: i, kind });
         }
     }
 
@@ -279,9 +251,7 @@ impl Checker {
             .iter()
             .map(|s| {
                 let mut out = Vec::new();
-                if let StmtKind::Let { value, .. } | StmtKind::Wave { value, .. } =
-                    &program.stmts[s.stmt].kind
-                {
+                if let StmtKind::Let { value, .. } | StmtKind::Wave { value, .. } = &program.stmts[s.stmt].kind {
                     value.walk(&mut |e| {
                         if let ExprKind::Name(n) = &e.kind {
                             if let Some(&k) = self.by_name.get(n) {
@@ -328,19 +298,12 @@ impl Checker {
             }
         }
         for cycle in cycles {
-            let names: Vec<String> = cycle
-                .iter()
-                .map(|&k| format!("`{}`", self.symbols[k].name))
-                .collect();
+            let names: Vec<String> = cycle.iter().map(|&k| format!("`{}`", self.symbols[k].name)).collect();
             let first = cycle[0];
             let mut d = Diagnostic::error(
                 Code::CyclicDefinition,
                 self.symbols[first].span,
-                format!(
-                    "definitions depend on each other in a cycle: {} -> {}",
-                    names.join(" -> "),
-                    names[0]
-                ),
+                format!("definitions depend on each other in a cycle: {} -> {}", names.join(" -> "), names[0]),
             );
             for &k in &cycle[1..] {
                 d = d.with_label(self.symbols[k].span, "part of the cycle");
@@ -405,16 +368,8 @@ impl Checker {
         let span = rhs.map_or(lhs.span, |r| lhs.span.join(r.span));
         let projective = poly.uses_var(2);
         let Some(degree) = poly.degree().filter(|&d| d >= 1) else {
-            let what = if poly.is_zero() {
-                "is identically zero"
-            } else {
-                "has no variables"
-            };
-            self.error(
-                Code::DegreeTooLow,
-                span,
-                format!("the equation {what}: a curve needs degree at least 1"),
-            );
+            let what = if poly.is_zero() { "is identically zero" } else { "has no variables" };
+            self.error(Code::DegreeTooLow, span, format!("the equation {what}: a curve needs degree at least 1"));
             return;
         };
         if projective && !poly.is_homogeneous() {
@@ -422,23 +377,13 @@ impl Checker {
             self.error(
                 Code::NotHomogeneous,
                 span,
-                format!(
-                    "an equation in x, y, z must be homogeneous, but its terms have degrees {}",
-                    degs.join(", ")
-                ),
+                format!("an equation in x, y, z must be homogeneous, but its terms have degrees {}", degs.join(", ")),
             )
             .notes
             .push("drop z for an affine equation in x, y (its projective closure is meant)".into());
             return;
         }
-        self.curves.insert(
-            i,
-            CurveEquation {
-                poly,
-                projective,
-                degree,
-            },
-        );
+        self.curves.insert(i, CurveEquation { poly, projective, degree });
     }
 
     fn to_poly(&mut self, e: &Expr) -> Result<Poly, Diagnostic> {
@@ -450,9 +395,9 @@ impl Checker {
             )
         };
         match &e.kind {
-            ExprKind::Number(t) => parse_exact(t)
-                .map(Poly::constant)
-                .map_err(|m| Diagnostic::error(Code::NumberTooLarge, e.span, m)),
+            ExprKind::Number(t) => {
+                parse_exact(t).map(Poly::constant).map_err(|m| Diagnostic::error(Code::NumberTooLarge, e.span, m))
+            }
             ExprKind::Name(n) => match n.as_str() {
                 "x" => Ok(Poly::var(0)),
                 "y" => Ok(Poly::var(1)),
@@ -465,10 +410,7 @@ impl Checker {
                 .with_note("use x, y for an affine equation, or x, y, z for a homogeneous one")),
             },
             ExprKind::Paren(inner) => self.to_poly(inner),
-            ExprKind::Unary {
-                op: UnOp::Neg,
-                operand,
-            } => Ok(self.to_poly(operand)?.neg()),
+            ExprKind::Unary { op: UnOp::Neg, operand } => Ok(self.to_poly(operand)?.neg()),
             ExprKind::Binary { op, lhs, rhs } => match op {
                 BinOp::Add => Ok(self.to_poly(lhs)?.add(&self.to_poly(rhs)?)),
                 BinOp::Sub => Ok(self.to_poly(lhs)?.sub(&self.to_poly(rhs)?)),
@@ -482,14 +424,8 @@ impl Checker {
                 BinOp::Div => {
                     let l = self.to_poly(lhs)?;
                     match self.to_poly(rhs)?.as_constant() {
-                        Some(c) if !c.is_zero() => {
-                            Ok(l.scale(&(BigRational::from_integer(1.into()) / c)))
-                        }
-                        Some(_) => Err(Diagnostic::error(
-                            Code::EvalFailed,
-                            rhs.span,
-                            "division by zero",
-                        )),
+                        Some(c) if !c.is_zero() => Ok(l.scale(&(BigRational::from_integer(1.into()) / c))),
+                        Some(_) => Err(Diagnostic::error(Code::EvalFailed, rhs.span, "division by zero")),
                         None => Err(not_poly(rhs.span, "it cannot divide by a polynomial")),
                     }
                 }
@@ -498,12 +434,7 @@ impl Checker {
                     let exp = self.to_poly(rhs)?.as_constant();
                     let k = match exp {
                         Some(q) if q.is_integer() && !q.is_negative() => q.to_integer().to_u32(),
-                        _ => {
-                            return Err(not_poly(
-                                rhs.span,
-                                "an exponent must be a non-negative integer",
-                            ))
-                        }
+                        _ => return Err(not_poly(rhs.span, "an exponent must be a non-negative integer")),
                     };
                     let Some(k) = k else {
                         return Err(too_high(e.span));
@@ -520,27 +451,17 @@ impl Checker {
                             }
                         }
                         None => {
-                            if base.degree().unwrap_or(0) as u64 * k as u64
-                                > MAX_CURVE_DEGREE as u64
-                            {
+                            if base.degree().unwrap_or(0) as u64 * k as u64 > MAX_CURVE_DEGREE as u64 {
                                 return Err(too_high(e.span));
                             }
                         }
                     }
                     Ok(base.pow(k))
                 }
-                _ => Err(not_poly(
-                    e.span,
-                    &format!("`{}` has no meaning there", op.text()),
-                )),
+                _ => Err(not_poly(e.span, &format!("`{}` has no meaning there", op.text()))),
             },
-            ExprKind::Imag(_) => Err(not_poly(
-                e.span,
-                "coefficients must be rational, not complex",
-            )),
-            ExprKind::Call { func, .. } => {
-                Err(not_poly(e.span, &format!("it cannot call `{}`", func.name)))
-            }
+            ExprKind::Imag(_) => Err(not_poly(e.span, "coefficients must be rational, not complex")),
+            ExprKind::Call { func, .. } => Err(not_poly(e.span, &format!("it cannot call `{}`", func.name))),
             _ => Err(not_poly(e.span, "this is not a polynomial term")),
         }
     }
@@ -549,31 +470,19 @@ impl Checker {
 
     fn check_setting(&mut self, name: &Ident, value: &Expr, seen: &mut HashMap<String, Span>) {
         let Some(&(_, _, meaning)) = SETTINGS.iter().find(|s| s.0 == name.name) else {
-            let d = self.error(
-                Code::UnknownSetting,
-                name.span,
-                format!("there is no setting `{}`", name.name),
-            );
+            let d = self.error(Code::UnknownSetting, name.span, format!("there is no setting `{}`", name.name));
             match closest(&name.name, SETTINGS.iter().map(|s| s.0)) {
                 Some(s) => d.notes.push(format!("did you mean `{s}`?")),
                 None => d.notes.push(format!(
                     "the settings are {}",
-                    SETTINGS
-                        .iter()
-                        .map(|s| format!("`{}`", s.0))
-                        .collect::<Vec<_>>()
-                        .join(", ")
+                    SETTINGS.iter().map(|s| format!("`{}`", s.0)).collect::<Vec<_>>().join(", ")
                 )),
             }
             return;
         };
         if let Some(prev) = seen.get(&name.name) {
-            let d = Diagnostic::error(
-                Code::DuplicateSetting,
-                name.span,
-                format!("`{}` is already set", name.name),
-            )
-            .with_label(*prev, "first set here");
+            let d = Diagnostic::error(Code::DuplicateSetting, name.span, format!("`{}` is already set", name.name))
+                .with_label(*prev, "first set here");
             self.diags.push(d);
             return;
         }
@@ -587,10 +496,7 @@ impl Checker {
                 self.error(
                     Code::BadSettingValue,
                     value.span,
-                    format!(
-                        "`{}` ({meaning}) takes a number between 0 and 1, such as 1e-10",
-                        name.name
-                    ),
+                    format!("`{}` ({meaning}) takes a number between 0 and 1, such as 1e-10", name.name),
                 );
             }
         }
@@ -611,51 +517,28 @@ impl Checker {
             if let Some(tol) = within {
                 let top = strip_parens(claim);
                 if !matches!(top.kind, ExprKind::Binary { op: BinOp::Eq, .. }) {
-                    self.error(
-                        Code::WithinWithoutEquality,
-                        tol.span,
-                        "`within` gives the tolerance of an `==` claim",
-                    )
-                    .notes
-                    .push("write `expect A == B within 1e-12`".into());
+                    self.error(Code::WithinWithoutEquality, tol.span, "`within` gives the tolerance of an `==` claim")
+                        .notes
+                        .push("write `expect A == B within 1e-12`".into());
                 }
                 let tk = self.infer(tol);
                 if !matches!(tk, Kind::Number | Kind::Unknown) {
-                    self.error(
-                        Code::WrongKind,
-                        tol.span,
-                        format!("a tolerance is a number, not {}", tk.describe()),
-                    );
+                    self.error(Code::WrongKind, tol.span, format!("a tolerance is a number, not {}", tk.describe()));
                 } else if const_real(tol).is_some_and(|t| t <= 0.0) {
-                    self.error(
-                        Code::BadSettingValue,
-                        tol.span,
-                        "a tolerance must be positive",
-                    );
+                    self.error(Code::BadSettingValue, tol.span, "a tolerance must be positive");
                 }
             }
         })
     }
 
-    fn check_output(
-        &mut self,
-        kind: OutputKind,
-        wave: &Ident,
-        region: &[Axis],
-        path: &StrLit,
-    ) -> bool {
+    fn check_output(&mut self, kind: OutputKind, wave: &Ident, region: &[Axis], path: &StrLit) -> bool {
         clean!(self, {
             let k = self.resolve(&wave.name, wave.span);
             if !matches!(k, Kind::Wave | Kind::Unknown) {
                 self.error(
                     Code::WrongKind,
                     wave.span,
-                    format!(
-                        "`{}` needs a wave, but `{}` is {}",
-                        kind.keyword(),
-                        wave.name,
-                        k.describe()
-                    ),
+                    format!("`{}` needs a wave, but `{}` is {}", kind.keyword(), wave.name, k.describe()),
                 );
             }
             self.check_region(region);
@@ -679,12 +562,8 @@ impl Checker {
                     d.notes.push(format!("did you mean `{s}`?"));
                 }
             } else if let Some(prev) = seen.get(name) {
-                let d = Diagnostic::error(
-                    Code::DuplicateAxis,
-                    ax.name.span,
-                    format!("axis `{name}` is given twice"),
-                )
-                .with_label(*prev, "first given here");
+                let d = Diagnostic::error(Code::DuplicateAxis, ax.name.span, format!("axis `{name}` is given twice"))
+                    .with_label(*prev, "first given here");
                 self.diags.push(d);
             } else {
                 seen.insert(name, ax.name.span);
@@ -692,11 +571,7 @@ impl Checker {
             let number = |c: &mut Checker, e: &Expr| {
                 let k = c.infer(e);
                 if !matches!(k, Kind::Number | Kind::Unknown) {
-                    c.error(
-                        Code::WrongKind,
-                        e.span,
-                        format!("an axis bound is a number, not {}", k.describe()),
-                    );
+                    c.error(Code::WrongKind, e.span, format!("an axis bound is a number, not {}", k.describe()));
                 }
             };
             match &ax.kind {
@@ -709,9 +584,7 @@ impl Checker {
                             self.error(
                                 Code::EmptyRange,
                                 lo.span.join(hi.span),
-                                format!(
-                                    "the range {a}..{b} is empty: its end must be above its start"
-                                ),
+                                format!("the range {a}..{b} is empty: its end must be above its start"),
                             );
                         }
                     }
@@ -730,18 +603,10 @@ impl Checker {
 
     fn resolve(&mut self, name: &str, span: Span) -> Kind {
         if let Some(&k) = self.by_name.get(name) {
-            self.references.push(Reference {
-                name: name.to_string(),
-                span,
-                symbol: k,
-            });
+            self.references.push(Reference { name: name.to_string(), span, symbol: k });
             return self.symbols[k].kind;
         }
-        let mut d = Diagnostic::error(
-            Code::UndefinedName,
-            span,
-            format!("`{name}` is not defined"),
-        );
+        let mut d = Diagnostic::error(Code::UndefinedName, span, format!("`{name}` is not defined"));
         if let Some(s) = closest(name, self.symbols.iter().map(|s| s.name.as_str())) {
             d = d.with_note(format!("did you mean `{s}`?"));
         } else if ["x", "y", "z"].contains(&name) {
@@ -768,30 +633,19 @@ impl Checker {
                 for c in coords {
                     let k = self.infer(c);
                     if !matches!(k, Kind::Number | Kind::Unknown) {
-                        self.error(
-                            Code::WrongKind,
-                            c.span,
-                            format!("a coordinate is a number, not {}", k.describe()),
-                        );
+                        self.error(Code::WrongKind, c.span, format!("a coordinate is a number, not {}", k.describe()));
                     }
                 }
                 let want = if *projective { 3 } else { 2 };
                 if coords.len() != want {
-                    let what = if *projective {
-                        "a projective point (x : y : z)"
-                    } else {
-                        "an affine point (x, y)"
-                    };
+                    let what = if *projective { "a projective point (x : y : z)" } else { "an affine point (x, y)" };
                     self.error(
                         Code::ShapeMismatch,
                         e.span,
                         format!("{what} has {want} coordinates, not {}", coords.len()),
                     );
                 }
-                Kind::Point {
-                    dim: coords.len(),
-                    projective: *projective,
-                }
+                Kind::Point { dim: coords.len(), projective: *projective }
             }
             ExprKind::List(items) => self.infer_list(items),
             ExprKind::Unary { op, operand } => {
@@ -800,11 +654,7 @@ impl Checker {
                     (_, Kind::Unknown) => Kind::Unknown,
                     (UnOp::Neg, Kind::Number | Kind::Vector(_) | Kind::Matrix(_)) => k,
                     (UnOp::Not, Kind::Bool) => Kind::Bool,
-                    (UnOp::Neg, _) => self.wrong(
-                        operand.span,
-                        "`-` applies to numbers, vectors and matrices",
-                        k,
-                    ),
+                    (UnOp::Neg, _) => self.wrong(operand.span, "`-` applies to numbers, vectors and matrices", k),
                     (UnOp::Not, _) => self.wrong(operand.span, "`not` applies to true/false", k),
                 }
             }
@@ -817,35 +667,19 @@ impl Checker {
     }
 
     fn wrong(&mut self, span: Span, what: &str, found: Kind) -> Kind {
-        self.error(
-            Code::WrongKind,
-            span,
-            format!("{what}; this is {}", found.describe()),
-        );
+        self.error(Code::WrongKind, span, format!("{what}; this is {}", found.describe()));
         Kind::Unknown
     }
 
     fn infer_list(&mut self, items: &[Expr]) -> Kind {
         let kinds: Vec<Kind> = items.iter().map(|i| self.infer(i)).collect();
-        if kinds
-            .iter()
-            .all(|k| matches!(k, Kind::Number | Kind::Unknown))
-        {
+        if kinds.iter().all(|k| matches!(k, Kind::Number | Kind::Unknown)) {
             return Kind::Vector(Some(items.len()));
         }
-        if kinds
-            .iter()
-            .all(|k| matches!(k, Kind::Vector(_) | Kind::Unknown))
-        {
-            let lens: Vec<Option<usize>> = kinds
-                .iter()
-                .map(|k| if let Kind::Vector(n) = k { *n } else { None })
-                .collect();
-            let known: Vec<(usize, usize)> = lens
-                .iter()
-                .enumerate()
-                .filter_map(|(i, n)| n.map(|n| (i, n)))
-                .collect();
+        if kinds.iter().all(|k| matches!(k, Kind::Vector(_) | Kind::Unknown)) {
+            let lens: Vec<Option<usize>> =
+                kinds.iter().map(|k| if let Kind::Vector(n) = k { *n } else { None }).collect();
+            let known: Vec<(usize, usize)> = lens.iter().enumerate().filter_map(|(i, n)| n.map(|n| (i, n))).collect();
             if let Some(&(_, first)) = known.first() {
                 if let Some(&(bad, n)) = known.iter().find(|(_, n)| *n != first) {
                     self.error(
@@ -866,13 +700,7 @@ impl Checker {
         Kind::List
     }
 
-    fn infer_binary(
-        &mut self,
-        op: BinOp,
-        span: Span,
-        (l, ls): (Kind, Span),
-        (r, rs): (Kind, Span),
-    ) -> Kind {
+    fn infer_binary(&mut self, op: BinOp, span: Span, (l, ls): (Kind, Span), (r, rs): (Kind, Span)) -> Kind {
         use Kind::*;
         if op.is_comparison() {
             let ordered = !matches!(op, BinOp::Eq | BinOp::Ne);
@@ -888,11 +716,7 @@ impl Checker {
                     } else {
                         "`==` compares values of the same kind"
                     };
-                    self.error(
-                        Code::WrongKind,
-                        span,
-                        format!("{what}; here {} and {}", l.describe(), r.describe()),
-                    );
+                    self.error(Code::WrongKind, span, format!("{what}; here {} and {}", l.describe(), r.describe()));
                 }
             }
             return Bool;
@@ -908,8 +732,7 @@ impl Checker {
         match (op, l, r) {
             (_, Unknown, _) | (_, _, Unknown) => Unknown,
             (_, Number, Number) => Number,
-            (BinOp::Add | BinOp::Sub, Vector(_), Vector(_))
-            | (BinOp::Add | BinOp::Sub, Matrix(_), Matrix(_)) => {
+            (BinOp::Add | BinOp::Sub, Vector(_), Vector(_)) | (BinOp::Add | BinOp::Sub, Matrix(_), Matrix(_)) => {
                 self.same_shape(span, l, r);
                 l
             }
@@ -946,12 +769,7 @@ impl Checker {
                 self.error(
                     Code::WrongKind,
                     span,
-                    format!(
-                        "`{}` does not apply to {} and {}",
-                        op.text(),
-                        l.describe(),
-                        r.describe()
-                    ),
+                    format!("`{}` does not apply to {} and {}", op.text(), l.describe(), r.describe()),
                 );
                 Unknown
             }
@@ -968,22 +786,15 @@ impl Checker {
             self.error(
                 Code::ShapeMismatch,
                 span,
-                format!(
-                    "the sides have different sizes: {} and {}",
-                    l.describe(),
-                    r.describe()
-                ),
+                format!("the sides have different sizes: {} and {}", l.describe(), r.describe()),
             );
         }
     }
 
     fn infer_call(&mut self, func: &Ident, args: &[Arg]) -> Kind {
         let Some(b) = builtins::lookup(&func.name) else {
-            let mut d = Diagnostic::error(
-                Code::UnknownFunction,
-                func.span,
-                format!("there is no function `{}`", func.name),
-            );
+            let mut d =
+                Diagnostic::error(Code::UnknownFunction, func.span, format!("there is no function `{}`", func.name));
             if let Some(s) = closest(&func.name, builtins::BUILTINS.iter().map(|b| b.name)) {
                 d = d.with_note(format!("did you mean `{s}`?"));
             }
@@ -998,8 +809,7 @@ impl Checker {
             }
             return Kind::Unknown;
         };
-        let mut given: Vec<Option<(Kind, Span)>> =
-            vec![None; b.positional.len() + b.keywords.len()];
+        let mut given: Vec<Option<(Kind, Span)>> = vec![None; b.positional.len() + b.keywords.len()];
         let mut axes: Vec<Axis> = Vec::new();
         let mut npos = 0;
         let mut kw_spans: HashMap<String, Span> = HashMap::new();
@@ -1014,11 +824,7 @@ impl Checker {
                         self.error(
                             Code::TooManyArguments,
                             e.span,
-                            format!(
-                                "`{}` takes {} positional argument(s)",
-                                b.name,
-                                b.positional.len()
-                            ),
+                            format!("`{}` takes {} positional argument(s)", b.name, b.positional.len()),
                         )
                         .notes
                         .push(format!("usage: {}", b.signature));
@@ -1038,11 +844,7 @@ impl Checker {
                     }
                     kw_spans.insert(name.name.clone(), name.span);
                     if takes_region && ["x", "y", "t"].contains(&name.name.as_str()) {
-                        axes.push(Axis {
-                            name: name.clone(),
-                            kind: AxisKind::Fixed(value.clone()),
-                            span: a.span(),
-                        });
+                        axes.push(Axis { name: name.clone(), kind: AxisKind::Fixed(value.clone()), span: a.span() });
                         continue;
                     }
                     let k = self.infer(value);
@@ -1070,13 +872,9 @@ impl Checker {
                     if takes_region {
                         axes.push(ax.clone());
                     } else {
-                        self.error(
-                            Code::UnknownKeyword,
-                            ax.span,
-                            format!("`{}` takes no region", b.name),
-                        )
-                        .notes
-                        .push(format!("usage: {}", b.signature));
+                        self.error(Code::UnknownKeyword, ax.span, format!("`{}` takes no region", b.name))
+                            .notes
+                            .push(format!("usage: {}", b.signature));
                     }
                 }
             }
@@ -1086,10 +884,7 @@ impl Checker {
                 self.error(
                     Code::MissingArgument,
                     func.span,
-                    format!(
-                        "`{}` needs a region, e.g. `x in -4..4, y in -4..4, t = 0`",
-                        b.name
-                    ),
+                    format!("`{}` needs a region, e.g. `x in -4..4, y in -4..4, t = 0`", b.name),
                 );
             }
             self.check_region(&axes);
@@ -1103,13 +898,9 @@ impl Checker {
                     } else {
                         format!("`{} = ...`", p.name)
                     };
-                    self.error(
-                        Code::MissingArgument,
-                        func.span,
-                        format!("`{}` needs {how}", b.name),
-                    )
-                    .notes
-                    .push(format!("usage: {}", b.signature));
+                    self.error(Code::MissingArgument, func.span, format!("`{}` needs {how}", b.name))
+                        .notes
+                        .push(format!("usage: {}", b.signature));
                 }
                 Some((k, s)) if !accepts(p.kind, k) => {
                     self.error(
@@ -1140,11 +931,7 @@ impl Checker {
     /// Size relations between arguments that the table cannot express.
     fn check_shapes(&mut self, b: &Builtin, given: &[Option<(Kind, Span)>]) {
         let arg = |name: &str| -> Option<(Kind, Span)> {
-            let j = b
-                .positional
-                .iter()
-                .chain(b.keywords.iter())
-                .position(|p| p.name == name)?;
+            let j = b.positional.iter().chain(b.keywords.iter()).position(|p| p.name == name)?;
             given[j]
         };
         let square = |c: &mut Checker, name: &str| -> Option<usize> {
@@ -1165,11 +952,7 @@ impl Checker {
         let vec_len = |c: &mut Checker, name: &str, g: usize, what: &str| {
             if let Some((Kind::Vector(Some(n)), s)) = arg(name) {
                 if n != g {
-                    c.error(
-                        Code::ShapeMismatch,
-                        s,
-                        format!("`{name}` has length {n}, but {what} is {g} x {g}"),
-                    );
+                    c.error(Code::ShapeMismatch, s, format!("`{name}` has length {n}, but {what} is {g} x {g}"));
                 }
             }
         };
@@ -1182,7 +965,11 @@ impl Checker {
                     vec_len(self, "z", g, "the Riemann matrix");
                     if let Some((Kind::Matrix(Some((r, c))), s)) = arg("char") {
                         if r != 2 || c != g {
-                            self.error(Code::ShapeMismatch, s, format!("`char = [a, b]` needs two rows of length {g}; this is {r} x {c}"));
+                            self.error(
+                                Code::ShapeMismatch,
+                                s,
+                                format!("`char = [a, b]` needs two rows of length {g}; this is {r} x {c}"),
+                            );
                         }
                     }
                     if let Some((Kind::Matrix(Some((_, c))), s)) = arg("along") {
@@ -1214,7 +1001,11 @@ impl Checker {
                             format!("`a` needs {n} columns (one per kappa), but has {c}"),
                         );
                     } else if k >= n {
-                        self.error(Code::ShapeMismatch, s, format!("`a` is {k} x {n}; a point of the Grassmannian needs fewer rows than columns"));
+                        self.error(
+                            Code::ShapeMismatch,
+                            s,
+                            format!("`a` is {k} x {n}; a point of the Grassmannian needs fewer rows than columns"),
+                        );
                     }
                 }
             }
@@ -1274,10 +1065,7 @@ pub fn const_real(e: &Expr) -> Option<f64> {
     match &e.kind {
         ExprKind::Number(t) => parse_exact(t).ok().map(|q| to_f64(&q)),
         ExprKind::Paren(i) => const_real(i),
-        ExprKind::Unary {
-            op: UnOp::Neg,
-            operand,
-        } => const_real(operand).map(|v| -v),
+        ExprKind::Unary { op: UnOp::Neg, operand } => const_real(operand).map(|v| -v),
         ExprKind::Binary { op, lhs, rhs } => {
             let (a, b) = (const_real(lhs)?, const_real(rhs)?);
             let v = match op {
@@ -1302,15 +1090,10 @@ pub fn check_output_path(kind: OutputKind, path: &StrLit) -> Result<(), Diagnost
         OutputKind::Sample => &["csv", "json", "npy"],
         OutputKind::Plot => &["png", "svg"],
     };
-    let windows_drive =
-        p.len() >= 2 && p.as_bytes()[1] == b':' && p.as_bytes()[0].is_ascii_alphabetic();
+    let windows_drive = p.len() >= 2 && p.as_bytes()[1] == b':' && p.as_bytes()[0].is_ascii_alphabetic();
     if p.starts_with('/') || p.starts_with('\\') || windows_drive {
-        return Err(Diagnostic::error(
-            Code::AbsolutePath,
-            path.span,
-            format!("output path `{p}` is absolute"),
-        )
-        .with_note("output paths are relative to the experiment file, e.g. \"out/swell.csv\""));
+        return Err(Diagnostic::error(Code::AbsolutePath, path.span, format!("output path `{p}` is absolute"))
+            .with_note("output paths are relative to the experiment file, e.g. \"out/swell.csv\""));
     }
     let mut depth: i64 = 0;
     for comp in p.split(['/', '\\']) {
@@ -1330,10 +1113,7 @@ pub fn check_output_path(kind: OutputKind, path: &StrLit) -> Result<(), Diagnost
             _ => depth += 1,
         }
     }
-    let ext = std::path::Path::new(p)
-        .extension()
-        .and_then(|e| e.to_str())
-        .map(str::to_ascii_lowercase);
+    let ext = std::path::Path::new(p).extension().and_then(|e| e.to_str()).map(str::to_ascii_lowercase);
     match ext {
         Some(e) if formats.contains(&e.as_str()) => Ok(()),
         _ => Err(Diagnostic::error(
@@ -1342,11 +1122,7 @@ pub fn check_output_path(kind: OutputKind, path: &StrLit) -> Result<(), Diagnost
             format!(
                 "`{}` writes {}; `{p}` has none of these extensions",
                 kind.keyword(),
-                formats
-                    .iter()
-                    .map(|f| format!(".{f}"))
-                    .collect::<Vec<_>>()
-                    .join(", ")
+                formats.iter().map(|f| format!(".{f}")).collect::<Vec<_>>().join(", ")
             ),
         )),
     }

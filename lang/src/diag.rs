@@ -42,14 +42,7 @@ pub struct Diagnostic {
 
 impl Diagnostic {
     pub fn new(severity: Severity, code: Code, span: Span, message: impl Into<String>) -> Self {
-        Diagnostic {
-            severity,
-            code,
-            message: message.into(),
-            span,
-            labels: vec![],
-            notes: vec![],
-        }
+        Diagnostic { severity, code, message: message.into(), span, labels: vec![], notes: vec![] }
     }
     pub fn error(code: Code, span: Span, message: impl Into<String>) -> Self {
         Self::new(Severity::Error, code, span, message)
@@ -61,10 +54,7 @@ impl Diagnostic {
         Self::new(Severity::Information, code, span, message)
     }
     pub fn with_label(mut self, span: Span, message: impl Into<String>) -> Self {
-        self.labels.push(Label {
-            span,
-            message: message.into(),
-        });
+        self.labels.push(Label { span, message: message.into() });
         self
     }
     pub fn with_note(mut self, note: impl Into<String>) -> Self {
@@ -155,7 +145,5 @@ impl std::fmt::Display for Code {
 
 /// Sort diagnostics by position, then severity, for stable output.
 pub fn sort(diags: &mut [Diagnostic]) {
-    diags.sort_by(|a, b| {
-        (a.span.start, a.span.end, a.severity).cmp(&(b.span.start, b.span.end, b.severity))
-    });
+    diags.sort_by(|a, b| (a.span.start, a.span.end, a.severity).cmp(&(b.span.start, b.span.end, b.severity)));
 }

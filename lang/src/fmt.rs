@@ -9,10 +9,7 @@ use crate::parser::parse;
 enum Item {
     Blank,
     Comment(String),
-    Line {
-        code: String,
-        trailing: Option<String>,
-    },
+    Line { code: String, trailing: Option<String> },
 }
 
 pub fn format(src: &str) -> String {
@@ -34,9 +31,7 @@ pub fn format(src: &str) -> String {
         if !items.is_empty() && blank_between(last_end, stmt.span.start) {
             items.push(Item::Blank);
         }
-        let inner_comment = comments
-            .peek()
-            .is_some_and(|c| c.span.start < stmt.span.end);
+        let inner_comment = comments.peek().is_some_and(|c| c.span.start < stmt.span.end);
         let code = if matches!(stmt.kind, StmtKind::Error) || inner_comment {
             // Kept verbatim, with the comments it contains.
             while comments.next_if(|c| c.span.start < stmt.span.end).is_some() {}
@@ -45,12 +40,10 @@ pub fn format(src: &str) -> String {
             stmt_text(stmt)
         };
         last_end = stmt.span.end;
-        let trailing = comments
-            .next_if(|c| !src[stmt.span.end..c.span.start].contains('\n'))
-            .map(|c| {
-                last_end = c.span.end;
-                c.text.trim_end().to_string()
-            });
+        let trailing = comments.next_if(|c| !src[stmt.span.end..c.span.start].contains('\n')).map(|c| {
+            last_end = c.span.end;
+            c.text.trim_end().to_string()
+        });
         items.push(Item::Line { code, trailing });
     }
     for c in comments {
@@ -96,21 +89,11 @@ fn render(items: &[Item]) -> String {
                 }
                 let width = items[i..j]
                     .iter()
-                    .map(|it| {
-                        if let Item::Line { code, .. } = it {
-                            code.chars().count()
-                        } else {
-                            0
-                        }
-                    })
+                    .map(|it| if let Item::Line { code, .. } = it { code.chars().count() } else { 0 })
                     .max()
                     .unwrap_or(0);
                 for it in &items[i..j] {
-                    if let Item::Line {
-                        code,
-                        trailing: Some(t),
-                    } = it
-                    {
+                    if let Item::Line { code, trailing: Some(t) } = it {
                         let pad = width - code.chars().count() + 2;
                         out.push_str(code);
                         out.extend(std::iter::repeat_n(' ', pad));
@@ -140,12 +123,7 @@ pub fn stmt_text(stmt: &Stmt) -> String {
             Some(t) => format!("expect {} within {}", expr_text(claim), expr_text(t)),
             None => format!("expect {}", expr_text(claim)),
         },
-        StmtKind::Output {
-            kind,
-            wave,
-            region,
-            path,
-        } => format!(
+        StmtKind::Output { kind, wave, region, path } => format!(
             "{} {} over {} to {}",
             kind.keyword(),
             wave.name,
@@ -204,34 +182,33 @@ pub fn expr_text(e: &Expr) -> String {
                 .collect();
             format!("{}({})", func.name, args.join(", "))
         }
-        ExprKind::List(items) => format!(
-            "[{}]",
-            items.iter().map(expr_text).collect::<Vec<_>>().join(", ")
-        ),
+        ExprKind::List(items) => format!("[{}]", items.iter().map(expr_text).collect::<Vec<_>>().join(", ")),
         ExprKind::Point { coords, projective } => {
             let sep = if *projective { " : " } else { ", " };
-            format!(
-                "({})",
-                coords.iter().map(expr_text).collect::<Vec<_>>().join(sep)
-            )
+            format!("({})", coords.iter().map(expr_text).collect::<Vec<_>>().join(sep))
         }
         ExprKind::Paren(inner) => format!("({})", expr_text(inner)),
-        ExprKind::Unary {
-            op: UnOp::Neg,
-            operand,
-        } => format!("-{}", expr_text(operand)),
-        ExprKind::Unary {
-            op: UnOp::Not,
-            operand,
-        } => format!("not {}", expr_text(operand)),
+        ExprKind::Unary { op: UnOp::Neg, operand } => format!("-{}", expr_text(operand)),
+        ExprKind::Unary { op: UnOp::Not, operand } => format!("not {}", expr_text(operand)),
         ExprKind::Binary { op, lhs, rhs } => {
-            let tight = matches!(op, BinOp::Mul | BinOp::Div | BinOp::Pow);
-            if tight {
+            if *op == BinOp::Pow || (matches!(op, BinOp::Mul | BinOp::Div) && is_tight(lhs) && is_tight(rhs)) {
                 format!("{}{}{}", expr_text(lhs), op.text(), expr_text(rhs))
             } else {
                 format!("{} {} {}", expr_text(lhs), op.text(), expr_text(rhs))
             }
         }
         ExprKind::Error => "?".into(),
+    }
+}
+
+/// Products of simple factors print without spaces (`5*x^3`); others spaced
+/// (`(a + b) * 2`).
+fn is_tight(e: &Expr) -> bool {
+    match &e.kind {
+        ExprKind::Number(_) | ExprKind::Imag(_) | ExprKind::Name(_) | ExprKind::Call { .. } => true,
+        ExprKind::Binary { op: BinOp::Pow, .. } => true,
+        ExprKind::Binary { op: BinOp::Mul | BinOp::Div, lhs, rhs } => is_tight(lhs) && is_tight(rhs),
+        ExprKind::Unary { op: UnOp::Neg, operand } => is_tight(operand),
+        _ => false,
     }
 }

@@ -116,13 +116,7 @@ impl Token<'_> {
     pub fn starts_statement(&self) -> bool {
         matches!(
             self,
-            Token::Set
-                | Token::Curve
-                | Token::Let
-                | Token::Wave
-                | Token::Expect
-                | Token::Sample
-                | Token::Plot
+            Token::Set | Token::Curve | Token::Let | Token::Wave | Token::Expect | Token::Sample | Token::Plot
         )
     }
 
@@ -221,17 +215,11 @@ pub fn lex(src: &str) -> (Vec<(Token<'_>, Span)>, Vec<Diagnostic>) {
                     }
                 }
                 let text = &src[span.range()];
-                let mut d = Diagnostic::error(
-                    Code::BadToken,
-                    span,
-                    format!("unexpected character `{text}`"),
-                );
+                let mut d = Diagnostic::error(Code::BadToken, span, format!("unexpected character `{text}`"));
                 if text.starts_with('.') {
                     d = d.with_note("write decimals with a leading digit, e.g. `0.5`");
                 } else if !text.is_ascii() {
-                    d = d.with_note(
-                        "names and operators are ASCII; other text belongs in comments or strings",
-                    );
+                    d = d.with_note("names and operators are ASCII; other text belongs in comments or strings");
                 }
                 diags.push(d);
                 out.push((Token::Error, span));
@@ -251,15 +239,7 @@ mod tests {
 
     #[test]
     fn ranges_do_not_lex_as_decimals() {
-        assert_eq!(
-            kinds("-4..4"),
-            vec![
-                Token::Minus,
-                Token::Int("4"),
-                Token::DotDot,
-                Token::Int("4")
-            ]
-        );
+        assert_eq!(kinds("-4..4"), vec![Token::Minus, Token::Int("4"), Token::DotDot, Token::Int("4")]);
     }
 
     #[test]
@@ -283,12 +263,7 @@ mod tests {
     fn keywords_versus_names() {
         assert_eq!(
             kinds("set settings in inside"),
-            vec![
-                Token::Set,
-                Token::Ident("settings"),
-                Token::In,
-                Token::Ident("inside")
-            ]
+            vec![Token::Set, Token::Ident("settings"), Token::In, Token::Ident("inside")]
         );
     }
 
@@ -297,9 +272,7 @@ mod tests {
         let (toks, diags) = lex("let a = 1 @@ 2 # ok\n");
         assert_eq!(diags.len(), 1);
         assert_eq!(diags[0].span, Span::new(10, 12));
-        assert!(toks
-            .iter()
-            .any(|(t, _)| matches!(t, Token::Comment("# ok"))));
+        assert!(toks.iter().any(|(t, _)| matches!(t, Token::Comment("# ok"))));
     }
 
     #[test]

@@ -13,17 +13,15 @@ pub const MAX_DECIMAL_EXPONENT: i64 = 10_000;
 pub fn parse_exact(text: &str) -> Result<BigRational, String> {
     let (mantissa, exp) = match text.find(['e', 'E']) {
         Some(i) => {
-            let e: i64 = text[i + 1..]
-                .parse()
-                .map_err(|_| format!("the exponent of `{text}` is too large (at most {MAX_DECIMAL_EXPONENT} in size)"))?;
+            let e: i64 = text[i + 1..].parse().map_err(|_| {
+                format!("the exponent of `{text}` is too large (at most {MAX_DECIMAL_EXPONENT} in size)")
+            })?;
             (&text[..i], e)
         }
         None => (text, 0),
     };
     if exp.abs() > MAX_DECIMAL_EXPONENT {
-        return Err(format!(
-            "the exponent of `{text}` is too large (at most {MAX_DECIMAL_EXPONENT} in size)"
-        ));
+        return Err(format!("the exponent of `{text}` is too large (at most {MAX_DECIMAL_EXPONENT} in size)"));
     }
     let (int_part, frac_part) = match mantissa.find('.') {
         Some(i) => (&mantissa[..i], &mantissa[i + 1..]),
@@ -36,17 +34,11 @@ pub fn parse_exact(text: &str) -> Result<BigRational, String> {
         ));
     }
     let digits = format!("{int_part}{frac_part}");
-    let n: BigInt = digits
-        .parse()
-        .map_err(|_| format!("`{text}` is not a number"))?;
+    let n: BigInt = digits.parse().map_err(|_| format!("`{text}` is not a number"))?;
     let shift = exp - frac_part.len() as i64;
     let ten = BigInt::from(10);
     let p = num_traits::pow(ten, shift.unsigned_abs() as usize);
-    Ok(if shift >= 0 {
-        BigRational::from_integer(n * p)
-    } else {
-        BigRational::new(n, p)
-    })
+    Ok(if shift >= 0 { BigRational::from_integer(n * p) } else { BigRational::new(n, p) })
 }
 
 /// The nearest f64 of an exact rational, also for numerators and denominators

@@ -39,28 +39,18 @@ pub fn parse(src: &str) -> Parsed {
     let parser = stmt_parser::<TokInput>();
     let mut at = 0;
     for g in &groups {
-        let n = tokens[g.clone()]
-            .iter()
-            .filter(|(t, _)| !matches!(t, Token::Comment(_) | Token::Newline))
-            .count();
+        let n = tokens[g.clone()].iter().filter(|(t, _)| !matches!(t, Token::Comment(_) | Token::Newline)).count();
         stmts.push(parse_group(&parser, &sig[at..at + n], &mut diagnostics));
         at += n;
     }
-    Parsed {
-        program: Program { stmts, comments },
-        diagnostics,
-    }
+    Parsed { program: Program { stmts, comments }, diagnostics }
 }
 
-type TokInput<'t, 's> =
-    chumsky::input::MappedInput<'t, Token<'s>, SimpleSpan, &'t [(Token<'s>, SimpleSpan)]>;
+type TokInput<'t, 's> = chumsky::input::MappedInput<'t, Token<'s>, SimpleSpan, &'t [(Token<'s>, SimpleSpan)]>;
 
 /// Cuts the token stream into statements: index ranges into `tokens` that contain no
 /// line break outside brackets. Comments are collected on the way.
-fn split_statements(
-    tokens: &[(Token, Span)],
-    comments: &mut Vec<Comment>,
-) -> Vec<std::ops::Range<usize>> {
+fn split_statements(tokens: &[(Token, Span)], comments: &mut Vec<Comment>) -> Vec<std::ops::Range<usize>> {
     let mut groups = Vec::new();
     let mut start: Option<usize> = None;
     let mut depth = 0i32;
@@ -68,10 +58,7 @@ fn split_statements(
     for (i, &(tok, span)) in tokens.iter().enumerate() {
         match tok {
             Token::Comment(text) => {
-                comments.push(Comment {
-                    text: text.to_string(),
-                    span,
-                });
+                comments.push(Comment { text: text.to_string(), span });
                 continue;
             }
             Token::Newline => {
@@ -108,24 +95,14 @@ fn split_statements(
 
 const STATEMENT_KEYWORDS: &str = "`set`, `curve`, `let`, `wave`, `expect`, `sample` or `plot`";
 
-fn parse_group<'t, 's: 't, P>(
-    parser: &P,
-    group: &'t [(Token<'s>, SimpleSpan)],
-    diags: &mut Vec<Diagnostic>,
-) -> Stmt
+fn parse_group<'t, 's: 't, P>(parser: &P, group: &'t [(Token<'s>, SimpleSpan)], diags: &mut Vec<Diagnostic>) -> Stmt
 where
     P: Parser<'t, TokInput<'t, 's>, StmtKind, Extra<'t, 's>>,
 {
     let span = sp(group[0].1).join(sp(group[group.len() - 1].1));
-    let error = Stmt {
-        kind: StmtKind::Error,
-        span,
-    };
+    let error = Stmt { kind: StmtKind::Error, span };
     // The lexer has reported these already; parsing would only repeat the complaint.
-    if group
-        .iter()
-        .any(|(t, _)| matches!(t, Token::Error | Token::UnclosedStr(_)))
-    {
+    if group.iter().any(|(t, _)| matches!(t, Token::Error | Token::UnclosedStr(_))) {
         return error;
     }
     let first = group[0];
@@ -133,16 +110,10 @@ where
         let mut d = Diagnostic::error(
             Code::UnknownStatement,
             sp(first.1),
-            format!(
-                "a statement starts with {STATEMENT_KEYWORDS}, not {}",
-                first.0.describe()
-            ),
+            format!("a statement starts with {STATEMENT_KEYWORDS}, not {}", first.0.describe()),
         );
         if matches!(first.0, Token::Ident(_)) && matches!(group.get(1), Some((Token::Eq, _))) {
-            d = d.with_note(format!(
-                "to name a value, write `let {} = ...`",
-                first.0.text()
-            ));
+            d = d.with_note(format!("to name a value, write `let {} = ...`", first.0.text()));
         }
         diags.push(d);
         return error;
@@ -152,10 +123,7 @@ where
         return error;
     }
     let eoi: SimpleSpan = (span.end..span.end).into();
-    let input = group.map(
-        eoi,
-        (|(t, s)| (t, s)) as fn(&'t (Token<'s>, SimpleSpan)) -> (&'t Token<'s>, &'t SimpleSpan),
-    );
+    let input = group.map(eoi, (|(t, s)| (t, s)) as fn(&'t (Token<'s>, SimpleSpan)) -> (&'t Token<'s>, &'t SimpleSpan));
     let (out, errs) = parser.parse(input).into_output_errors();
     match (out, errs.into_iter().next()) {
         (Some(kind), None) => Stmt { kind, span },
@@ -181,12 +149,8 @@ fn unclosed_delimiter(group: &[(Token, SimpleSpan)]) -> Option<Diagnostic> {
     let (open, s) = stack.first().copied()?;
     let close = if open == Token::LParen { ")" } else { "]" };
     Some(
-        Diagnostic::error(
-            Code::UnclosedDelimiter,
-            sp(s),
-            format!("`{}` is not closed", open.text()),
-        )
-        .with_note(format!("add `{close}` before the end of the statement")),
+        Diagnostic::error(Code::UnclosedDelimiter, sp(s), format!("`{}` is not closed", open.text()))
+            .with_note(format!("add `{close}` before the end of the statement")),
     )
 }
 
@@ -201,11 +165,7 @@ fn describe_pattern(p: &RichPattern<Token>) -> String {
 
 fn rich_to_diagnostic(e: &Rich<Token, SimpleSpan>, group: &[(Token, SimpleSpan)]) -> Diagnostic {
     let last = sp(group[group.len() - 1].1);
-    let span = if e.span().start >= last.end {
-        last
-    } else {
-        sp(*e.span())
-    };
+    let span = if e.span().start >= last.end { last } else { sp(*e.span()) };
     let message = match e.reason() {
         RichReason::ExpectedFound { expected, found } => {
             let mut names: Vec<String> = expected.iter().map(describe_pattern).collect();
@@ -275,10 +235,7 @@ where
     I: ValueInput<'t, Token = Token<'s>, Span = SimpleSpan>,
 {
     select! { Token::Ident(s) => s }
-        .map_with(|s: &str, e| Ident {
-            name: s.to_string(),
-            span: sp(e.span()),
-        })
+        .map_with(|s: &str, e| Ident { name: s.to_string(), span: sp(e.span()) })
         .labelled("name")
 }
 
@@ -299,14 +256,11 @@ where
             kind: AxisKind::Range { lo, hi, step },
             span: sp(e.span()),
         });
-    let fixed = ident()
-        .then_ignore(just(Token::Eq))
-        .then(expr)
-        .map_with(|(name, v), e| Axis {
-            name,
-            kind: AxisKind::Fixed(v),
-            span: sp(e.span()),
-        });
+    let fixed = ident().then_ignore(just(Token::Eq)).then(expr).map_with(|(name, v), e| Axis {
+        name,
+        kind: AxisKind::Fixed(v),
+        span: sp(e.span()),
+    });
     choice((range, fixed)).labelled("axis (`x in A..B` or `t = A`)")
 }
 
@@ -324,16 +278,11 @@ where
             Token::False => ExprKind::Bool(false),
             Token::Str(s) => ExprKind::Str(unescape(s)),
         }
-        .map_with(|kind, e| Expr {
-            kind,
-            span: sp(e.span()),
-        })
+        .map_with(|kind, e| Expr { kind, span: sp(e.span()) })
         .labelled("value");
 
-        let keyword_arg = ident()
-            .then_ignore(just(Token::Eq))
-            .then(expr.clone())
-            .map(|(name, value)| Arg::Keyword { name, value });
+        let keyword_arg =
+            ident().then_ignore(just(Token::Eq)).then(expr.clone()).map(|(name, value)| Arg::Keyword { name, value });
         let range_arg = ident()
             .then_ignore(just(Token::In))
             .then(expr.clone())
@@ -341,11 +290,7 @@ where
             .then(expr.clone())
             .then(just(Token::Step).ignore_then(expr.clone()).or_not())
             .map_with(|(((name, lo), hi), step), e| {
-                Arg::Axis(Axis {
-                    name,
-                    kind: AxisKind::Range { lo, hi, step },
-                    span: sp(e.span()),
-                })
+                Arg::Axis(Axis { name, kind: AxisKind::Range { lo, hi, step }, span: sp(e.span()) })
             });
         let arg = choice((range_arg, keyword_arg, expr.clone().map(Arg::Positional)));
         let call = ident()
@@ -355,15 +300,9 @@ where
                     .collect::<Vec<_>>()
                     .delimited_by(just(Token::LParen), just(Token::RParen)),
             )
-            .map_with(|(func, args), e| Expr {
-                kind: ExprKind::Call { func, args },
-                span: sp(e.span()),
-            });
+            .map_with(|(func, args), e| Expr { kind: ExprKind::Call { func, args }, span: sp(e.span()) });
 
-        let name = ident().map(|id| Expr {
-            kind: ExprKind::Name(id.name),
-            span: id.span,
-        });
+        let name = ident().map(|id| Expr { kind: ExprKind::Name(id.name), span: id.span });
 
         let list = expr
             .clone()
@@ -371,10 +310,7 @@ where
             .allow_trailing()
             .collect::<Vec<_>>()
             .delimited_by(just(Token::LBracket), just(Token::RBracket))
-            .map_with(|items, e| Expr {
-                kind: ExprKind::List(items),
-                span: sp(e.span()),
-            });
+            .map_with(|items, e| Expr { kind: ExprKind::List(items), span: sp(e.span()) });
 
         #[derive(Clone)]
         enum Tail {
@@ -383,67 +319,36 @@ where
         }
         let tail = choice((
             just(Token::Comma)
-                .ignore_then(
-                    expr.clone()
-                        .separated_by(just(Token::Comma))
-                        .at_least(1)
-                        .collect::<Vec<_>>(),
-                )
+                .ignore_then(expr.clone().separated_by(just(Token::Comma)).at_least(1).collect::<Vec<_>>())
                 .map(Tail::Affine),
             just(Token::Colon)
-                .ignore_then(
-                    expr.clone()
-                        .separated_by(just(Token::Colon))
-                        .at_least(1)
-                        .collect::<Vec<_>>(),
-                )
+                .ignore_then(expr.clone().separated_by(just(Token::Colon)).at_least(1).collect::<Vec<_>>())
                 .map(Tail::Projective),
         ));
-        let paren = expr
-            .clone()
-            .then(tail.or_not())
-            .delimited_by(just(Token::LParen), just(Token::RParen))
-            .map_with(|(first, tail), e| {
+        let paren = expr.clone().then(tail.or_not()).delimited_by(just(Token::LParen), just(Token::RParen)).map_with(
+            |(first, tail), e| {
                 let kind = match tail {
                     None => ExprKind::Paren(Box::new(first)),
-                    Some(Tail::Affine(rest)) => ExprKind::Point {
-                        coords: std::iter::once(first).chain(rest).collect(),
-                        projective: false,
-                    },
-                    Some(Tail::Projective(rest)) => ExprKind::Point {
-                        coords: std::iter::once(first).chain(rest).collect(),
-                        projective: true,
-                    },
+                    Some(Tail::Affine(rest)) => {
+                        ExprKind::Point { coords: std::iter::once(first).chain(rest).collect(), projective: false }
+                    }
+                    Some(Tail::Projective(rest)) => {
+                        ExprKind::Point { coords: std::iter::once(first).chain(rest).collect(), projective: true }
+                    }
                 };
-                Expr {
-                    kind,
-                    span: sp(e.span()),
-                }
-            });
+                Expr { kind, span: sp(e.span()) }
+            },
+        );
 
-        let atom = choice((literal, call, name, list, paren))
-            .labelled("expression")
-            .boxed();
+        let atom = choice((literal, call, name, list, paren)).labelled("expression").boxed();
 
         // Exponents may be negated (`2^-1`); `-x^2` is `-(x^2)`; `a^b^c` is `a^(b^c)`.
-        let neg_atom = just(Token::Minus)
-            .map_with(|_, e| sp(e.span()))
-            .repeated()
-            .foldr_with(atom.clone(), |s, operand, e| Expr {
-                kind: ExprKind::Unary {
-                    op: UnOp::Neg,
-                    operand: Box::new(operand),
-                },
-                span: s.join(sp(e.span())),
+        let neg_atom =
+            just(Token::Minus).map_with(|_, e| sp(e.span())).repeated().foldr_with(atom.clone(), |s, operand, e| {
+                Expr { kind: ExprKind::Unary { op: UnOp::Neg, operand: Box::new(operand) }, span: s.join(sp(e.span())) }
             });
-        let power = atom
-            .then(
-                just(Token::Caret)
-                    .ignore_then(neg_atom)
-                    .repeated()
-                    .collect::<Vec<_>>(),
-            )
-            .map(|(base, mut exps)| {
+        let power = atom.then(just(Token::Caret).ignore_then(neg_atom).repeated().collect::<Vec<_>>()).map(
+            |(base, mut exps)| {
                 let mut acc = match exps.pop() {
                     None => return base,
                     Some(last) => last,
@@ -451,66 +356,33 @@ where
                 while let Some(prev) = exps.pop() {
                     let span = prev.span.join(acc.span);
                     acc = Expr {
-                        kind: ExprKind::Binary {
-                            op: BinOp::Pow,
-                            lhs: Box::new(prev),
-                            rhs: Box::new(acc),
-                        },
+                        kind: ExprKind::Binary { op: BinOp::Pow, lhs: Box::new(prev), rhs: Box::new(acc) },
                         span,
                     };
                 }
                 let span = base.span.join(acc.span);
-                Expr {
-                    kind: ExprKind::Binary {
-                        op: BinOp::Pow,
-                        lhs: Box::new(base),
-                        rhs: Box::new(acc),
-                    },
-                    span,
-                }
-            });
+                Expr { kind: ExprKind::Binary { op: BinOp::Pow, lhs: Box::new(base), rhs: Box::new(acc) }, span }
+            },
+        );
         let unary = just(Token::Minus)
             .map_with(|_, e| sp(e.span()))
             .repeated()
             .foldr_with(power, |s, operand, _| {
                 let span = s.join(operand.span);
-                Expr {
-                    kind: ExprKind::Unary {
-                        op: UnOp::Neg,
-                        operand: Box::new(operand),
-                    },
-                    span,
-                }
+                Expr { kind: ExprKind::Unary { op: UnOp::Neg, operand: Box::new(operand) }, span }
             })
             .boxed();
 
         fn bin(op: BinOp, lhs: Expr, rhs: Expr) -> Expr {
             let span = lhs.span.join(rhs.span);
-            Expr {
-                kind: ExprKind::Binary {
-                    op,
-                    lhs: Box::new(lhs),
-                    rhs: Box::new(rhs),
-                },
-                span,
-            }
+            Expr { kind: ExprKind::Binary { op, lhs: Box::new(lhs), rhs: Box::new(rhs) }, span }
         }
         let product = unary.clone().foldl(
-            choice((
-                just(Token::Star).to(BinOp::Mul),
-                just(Token::Slash).to(BinOp::Div),
-            ))
-            .then(unary)
-            .repeated(),
+            choice((just(Token::Star).to(BinOp::Mul), just(Token::Slash).to(BinOp::Div))).then(unary).repeated(),
             |l, (op, r)| bin(op, l, r),
         );
         let sum = product.clone().foldl(
-            choice((
-                just(Token::Plus).to(BinOp::Add),
-                just(Token::Minus).to(BinOp::Sub),
-            ))
-            .then(product)
-            .repeated(),
+            choice((just(Token::Plus).to(BinOp::Add), just(Token::Minus).to(BinOp::Sub))).then(product).repeated(),
             |l, (op, r)| bin(op, l, r),
         );
         let cmp_op = choice((
@@ -521,36 +393,18 @@ where
             just(Token::Lt).to(BinOp::Lt),
             just(Token::Gt).to(BinOp::Gt),
         ));
-        let comparison = sum
-            .clone()
-            .then(cmp_op.then(sum).or_not())
-            .map(|(l, rest)| match rest {
-                None => l,
-                Some((op, r)) => bin(op, l, r),
-            });
-        let negation = just(Token::Not)
-            .map_with(|_, e| sp(e.span()))
-            .repeated()
-            .foldr_with(comparison, |s, operand, _| {
+        let comparison = sum.clone().then(cmp_op.then(sum).or_not()).map(|(l, rest)| match rest {
+            None => l,
+            Some((op, r)) => bin(op, l, r),
+        });
+        let negation =
+            just(Token::Not).map_with(|_, e| sp(e.span())).repeated().foldr_with(comparison, |s, operand, _| {
                 let span = s.join(operand.span);
-                Expr {
-                    kind: ExprKind::Unary {
-                        op: UnOp::Not,
-                        operand: Box::new(operand),
-                    },
-                    span,
-                }
+                Expr { kind: ExprKind::Unary { op: UnOp::Not, operand: Box::new(operand) }, span }
             });
-        let conj = negation
-            .clone()
-            .foldl(just(Token::And).ignore_then(negation).repeated(), |l, r| {
-                bin(BinOp::And, l, r)
-            });
-        conj.clone()
-            .foldl(just(Token::Or).ignore_then(conj).repeated(), |l, r| {
-                bin(BinOp::Or, l, r)
-            })
-            .boxed()
+        let conj =
+            negation.clone().foldl(just(Token::And).ignore_then(negation).repeated(), |l, r| bin(BinOp::And, l, r));
+        conj.clone().foldl(just(Token::Or).ignore_then(conj).repeated(), |l, r| bin(BinOp::Or, l, r)).boxed()
     })
 }
 
@@ -585,30 +439,14 @@ where
         .then(just(Token::Within).ignore_then(expr.clone()).or_not())
         .map(|(claim, within)| StmtKind::Expect { claim, within });
     let path = select! { Token::Str(s) => s }
-        .map_with(|s: &str, e| StrLit {
-            value: unescape(s),
-            span: sp(e.span()),
-        })
+        .map_with(|s: &str, e| StrLit { value: unescape(s), span: sp(e.span()) })
         .labelled("output path string");
-    let output = choice((
-        just(Token::Sample).to(OutputKind::Sample),
-        just(Token::Plot).to(OutputKind::Plot),
-    ))
-    .then(ident())
-    .then_ignore(just(Token::Over))
-    .then(
-        axis(expr)
-            .separated_by(just(Token::Comma))
-            .at_least(1)
-            .collect::<Vec<_>>(),
-    )
-    .then_ignore(just(Token::To))
-    .then(path)
-    .map(|(((kind, wave), region), path)| StmtKind::Output {
-        kind,
-        wave,
-        region,
-        path,
-    });
+    let output = choice((just(Token::Sample).to(OutputKind::Sample), just(Token::Plot).to(OutputKind::Plot)))
+        .then(ident())
+        .then_ignore(just(Token::Over))
+        .then(axis(expr).separated_by(just(Token::Comma)).at_least(1).collect::<Vec<_>>())
+        .then_ignore(just(Token::To))
+        .then(path)
+        .map(|(((kind, wave), region), path)| StmtKind::Output { kind, wave, region, path });
     choice((set, curve, let_, wave, expect, output)).then_ignore(end())
 }

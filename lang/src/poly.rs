@@ -72,9 +72,7 @@ impl Poly {
         self.term_degrees().len() <= 1
     }
     pub fn neg(&self) -> Poly {
-        Poly {
-            terms: self.terms.iter().map(|(m, c)| (*m, -c.clone())).collect(),
-        }
+        Poly { terms: self.terms.iter().map(|(m, c)| (*m, -c.clone())).collect() }
     }
     pub fn add(&self, o: &Poly) -> Poly {
         let mut r = self.clone();
@@ -121,11 +119,7 @@ impl Poly {
     pub fn homogenize(&self) -> Poly {
         let d = self.degree().unwrap_or(0);
         Poly {
-            terms: self
-                .terms
-                .iter()
-                .map(|(m, c)| ([m[0], m[1], m[2] + d - (m[0] + m[1] + m[2])], c.clone()))
-                .collect(),
+            terms: self.terms.iter().map(|(m, c)| ([m[0], m[1], m[2] + d - (m[0] + m[1] + m[2])], c.clone())).collect(),
         }
     }
 }
@@ -154,13 +148,7 @@ impl fmt::Display for Poly {
             }
             let mono: Vec<String> = (0..3)
                 .filter(|&k| m[k] > 0)
-                .map(|k| {
-                    if m[k] == 1 {
-                        VARS[k].to_string()
-                    } else {
-                        format!("{}^{}", VARS[k], m[k])
-                    }
-                })
+                .map(|k| if m[k] == 1 { VARS[k].to_string() } else { format!("{}^{}", VARS[k], m[k]) })
                 .collect();
             let coeff_one = a.is_one();
             if mono.is_empty() {

@@ -15,19 +15,13 @@ pub fn render(path: &str, src: &str, diags: &[Diagnostic], color: bool) -> Strin
         };
         let span = clamp(d.span.range(), src.len());
         let mut report = Report::build(kind, (path, span.clone()))
-            .with_config(
-                Config::default()
-                    .with_index_type(IndexType::Byte)
-                    .with_color(color),
-            )
+            .with_config(Config::default().with_index_type(IndexType::Byte).with_color(color))
             .with_code(d.code.as_str())
             .with_message(&d.message)
             .with_label(Label::new((path, span)).with_color(c));
         for l in &d.labels {
             report = report.with_label(
-                Label::new((path, clamp(l.span.range(), src.len())))
-                    .with_message(&l.message)
-                    .with_color(Color::Blue),
+                Label::new((path, clamp(l.span.range(), src.len()))).with_message(&l.message).with_color(Color::Blue),
             );
         }
         for n in &d.notes {

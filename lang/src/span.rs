@@ -62,10 +62,7 @@ impl LineIndex {
                 starts.push(i + 1);
             }
         }
-        LineIndex {
-            starts,
-            text: text.to_string(),
-        }
+        LineIndex { starts, text: text.to_string() }
     }
 
     pub fn line_count(&self) -> usize {
@@ -97,10 +94,7 @@ impl LineIndex {
             Encoding::Utf8 => seg.len(),
             Encoding::Utf16 => seg.chars().map(char::len_utf16).sum(),
         };
-        LineCol {
-            line: line as u32,
-            character: character as u32,
-        }
+        LineCol { line: line as u32, character: character as u32 }
     }
 
     /// The byte offset of a line/column; columns past the line end clamp to it.
@@ -110,11 +104,7 @@ impl LineIndex {
             return self.text.len();
         }
         let start = self.starts[line];
-        let end = self
-            .starts
-            .get(line + 1)
-            .copied()
-            .unwrap_or(self.text.len());
+        let end = self.starts.get(line + 1).copied().unwrap_or(self.text.len());
         let content = self.text[start..end].trim_end_matches(['\n', '\r']);
         let mut units = 0usize;
         for (i, ch) in content.char_indices() {
@@ -140,46 +130,13 @@ mod tests {
         let text = "a\né🌊x\r\ny";
         let idx = LineIndex::new(text);
         let x = text.find('x').unwrap();
-        assert_eq!(
-            idx.line_col(x, Encoding::Utf16),
-            LineCol {
-                line: 1,
-                character: 3
-            }
-        );
-        assert_eq!(
-            idx.line_col(x, Encoding::Utf8),
-            LineCol {
-                line: 1,
-                character: 6
-            }
-        );
-        assert_eq!(
-            idx.offset(
-                LineCol {
-                    line: 1,
-                    character: 3
-                },
-                Encoding::Utf16
-            ),
-            x
-        );
+        assert_eq!(idx.line_col(x, Encoding::Utf16), LineCol { line: 1, character: 3 });
+        assert_eq!(idx.line_col(x, Encoding::Utf8), LineCol { line: 1, character: 6 });
+        assert_eq!(idx.offset(LineCol { line: 1, character: 3 }, Encoding::Utf16), x);
         let y = text.find('y').unwrap();
-        assert_eq!(
-            idx.line_col(y, Encoding::Utf16),
-            LineCol {
-                line: 2,
-                character: 0
-            }
-        );
+        assert_eq!(idx.line_col(y, Encoding::Utf16), LineCol { line: 2, character: 0 });
         // The CR of a CRLF is not a column of its own.
         let cr = text.find('\r').unwrap();
-        assert_eq!(
-            idx.line_col(cr, Encoding::Utf16),
-            LineCol {
-                line: 1,
-                character: 4
-            }
-        );
+        assert_eq!(idx.line_col(cr, Encoding::Utf16), LineCol { line: 1, character: 4 });
     }
 }

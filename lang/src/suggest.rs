@@ -31,14 +31,8 @@ pub fn closest<'a>(word: &str, candidates: impl IntoIterator<Item = &'a str>) ->
 mod tests {
     #[test]
     fn typos_find_their_word() {
-        assert_eq!(
-            super::closest("thetta", ["theta", "tau", "genus"]),
-            Some("theta")
-        );
-        assert_eq!(
-            super::closest("gens", ["theta", "tau", "genus"]),
-            Some("genus")
-        );
+        assert_eq!(super::closest("thetta", ["theta", "tau", "genus"]), Some("theta"));
+        assert_eq!(super::closest("gens", ["theta", "tau", "genus"]), Some("genus"));
         assert_eq!(super::closest("zzzzzz", ["theta", "tau"]), None);
     }
 }

@@ -4,7 +4,7 @@
 use clap::{Parser, Subcommand, ValueEnum};
 use kelp_evaluator::{evaluate, json::file_report, Mode};
 use kelp_lang::{check, render::render, Code, Diagnostic, Severity, Span};
-use std::io::IsTerminal;
+use std::io::{IsTerminal, Write};
 use std::path::{Path, PathBuf};
 
 #[derive(Parser)]
@@ -57,151 +57,137 @@ enum Command {
 }
 
 pub fn main() -> i32 {
-    let cli = match Cli::try_parse() {
+    let args: Vec<String> = std::env::args().collect();
+    let color = std::io::stderr().is_terminal();
+    run(&args, &mut std::io::stdout().lock(), &mut std::io::stderr().lock(), color)
+}
+
+/// Runs the command line with these arguments (the first is the program name),
+/// writing to `out` and `err`; returns the exit status.
+pub fn run(args: &[String], out: &mut dyn Write, err: &mut dyn Write, color: bool) -> i32 {
+    let cli = match Cli::try_parse_from(args) {
         Ok(c) => c,
         Err(e) => {
-            let code = if e.use_stderr() { 2 } else { 0 };
-            let _ = e.print();
-            return code;
+            let to_err = e.use_stderr();
+            let _ = if to_err { write!(err, "{e}") } else { write!(out, "{e}") };
+            return if to_err { 2 } else { 0 };
         }
     };
-    match cli.command {
-        Command::Check {
-            files,
-            format,
-            verbose,
-        } => evaluate_files(&files, format, verbose, Mode::Check),
-        Command::Run {
-            file,
-            format,
-            verbose,
-        } => evaluate_files(&[file], format, verbose, Mode::Run),
-        Command::Fmt { files, check } => fmt(&files, check),
+    let mut io = Io { out, err, color };
+    let status = match cli.command {
+        Command::Check { files, format, verbose } => io.evaluate_files(&files, format, verbose, Mode::Check),
+        Command::Run { file, format, verbose } => io.evaluate_files(&[file], format, verbose, Mode::Run),
+        Command::Fmt { files, check } => io.fmt(&files, check),
         Command::Lsp => {
-            eprintln!("kelp lsp: the language server is not built yet; `kelp check --format json` gives the same diagnostics");
+            Err("kelp lsp: the language server is not built yet; `kelp check --format json` gives the same diagnostics"
+                .to_string())
+        }
+    };
+    match status {
+        Ok(code) => code,
+        Err(msg) => {
+            let _ = writeln!(io.err, "{msg}");
             2
         }
     }
 }
 
 /// Reads a file as text; invalid UTF-8 is replaced and reported at its first byte.
-fn read_source(path: &Path) -> std::io::Result<(String, Option<Diagnostic>)> {
-    let bytes = std::fs::read(path)?;
+fn read_source(path: &Path) -> Result<(String, Option<Diagnostic>), String> {
+    let bytes = std::fs::read(path).map_err(|e| format!("kelp: cannot read {}: {e}", path.display()))?;
     Ok(match String::from_utf8(bytes) {
         Ok(s) => (s, None),
         Err(e) => {
             let at = e.utf8_error().valid_up_to();
             let s = String::from_utf8_lossy(e.as_bytes()).into_owned();
-            let d = Diagnostic::error(
-                Code::BadToken,
-                Span::new(at, at + 1),
-                "the file is not valid UTF-8 from here on",
-            )
-            .with_note("experiment files are UTF-8 text");
+            let d =
+                Diagnostic::error(Code::BadToken, Span::new(at, at + 1), "the file is not valid UTF-8 from here on")
+                    .with_note("experiment files are UTF-8 text");
             (s, Some(d))
         }
     })
 }
 
-fn evaluate_files(files: &[PathBuf], format: Format, verbose: bool, mode: Mode) -> i32 {
-    let color = std::io::stderr().is_terminal();
-    let mut reports = Vec::new();
-    let mut any_error = false;
-    for path in files {
-        let shown = path.display().to_string();
-        let (src, utf8) = match read_source(path) {
-            Ok(s) => s,
-            Err(e) => {
-                eprintln!("kelp: cannot read {shown}: {e}");
-                return 2;
-            }
-        };
-        let checked = check(&src);
-        let eval = evaluate(&checked, &src, &mode);
-        let mut diags: Vec<Diagnostic> = utf8
-            .into_iter()
-            .chain(checked.diagnostics.iter().cloned())
-            .chain(eval.diagnostics.iter().cloned())
-            .collect();
-        kelp_lang::diag::sort(&mut diags);
-        any_error |= diags.iter().any(Diagnostic::is_error);
-        match format {
-            Format::Json => reports.push(file_report(&shown, &src, &diags, &eval)),
-            Format::Human => {
-                let visible: Vec<Diagnostic> = diags
-                    .iter()
-                    .filter(|d| verbose || d.severity <= Severity::Warning)
-                    .cloned()
-                    .collect();
-                eprint!("{}", render(&shown, &src, &visible, color));
-                if verbose {
-                    for v in &eval.values {
-                        let bound = if v.value.error_bound > 0.0 {
-                            format!(" (± {:.1e})", v.value.error_bound)
-                        } else {
-                            String::new()
-                        };
-                        println!("  {} = {}{bound}", v.name, v.value.value);
-                    }
-                }
-                let passed = eval
-                    .expectations
-                    .iter()
-                    .filter(|e| e.passed == Some(true))
-                    .count();
-                let failed = eval
-                    .expectations
-                    .iter()
-                    .filter(|e| e.passed == Some(false))
-                    .count();
-                let open = eval.expectations.len() - passed - failed;
-                let errors = diags.iter().filter(|d| d.is_error()).count();
-                let warnings = diags
-                    .iter()
-                    .filter(|d| d.severity == Severity::Warning)
-                    .count();
-                let verdict = if errors == 0 { "ok" } else { "FAILED" };
-                println!(
-                    "{shown}: {verdict}: {passed} claim(s) passed, {failed} failed, {open} not decided; {errors} error(s), {warnings} warning(s)"
-                );
-                for o in &eval.outputs {
-                    println!("  wrote {o}");
-                }
-            }
-        }
-    }
-    if format == Format::Json {
-        let out = if reports.len() == 1 {
-            reports.pop().unwrap()
-        } else {
-            serde_json::Value::Array(reports)
-        };
-        println!("{}", serde_json::to_string_pretty(&out).unwrap());
-    }
-    i32::from(any_error)
+struct Io<'a> {
+    out: &'a mut dyn Write,
+    err: &'a mut dyn Write,
+    color: bool,
 }
 
-fn fmt(files: &[PathBuf], check_only: bool) -> i32 {
-    let mut unformatted = false;
-    for path in files {
-        let src = match std::fs::read_to_string(path) {
-            Ok(s) => s,
-            Err(e) => {
-                eprintln!("kelp: cannot read {}: {e}", path.display());
-                return 2;
+type Status = Result<i32, String>;
+
+impl Io<'_> {
+    fn evaluate_files(&mut self, files: &[PathBuf], format: Format, verbose: bool, mode: Mode) -> Status {
+        let mut reports = Vec::new();
+        let mut any_error = false;
+        let w = |e: std::io::Error| format!("kelp: cannot write output: {e}");
+        for path in files {
+            let shown = path.display().to_string();
+            let (src, utf8) = read_source(path)?;
+            let checked = check(&src);
+            let eval = evaluate(&checked, &src, &mode);
+            let mut diags: Vec<Diagnostic> = utf8
+                .into_iter()
+                .chain(checked.diagnostics.iter().cloned())
+                .chain(eval.diagnostics.iter().cloned())
+                .collect();
+            kelp_lang::diag::sort(&mut diags);
+            any_error |= diags.iter().any(Diagnostic::is_error);
+            if format == Format::Json {
+                reports.push(file_report(&shown, &src, &diags, &eval));
+                continue;
             }
-        };
-        let out = kelp_lang::fmt::format(&src);
-        if out == src {
-            continue;
+            let visible: Vec<Diagnostic> =
+                diags.iter().filter(|d| verbose || d.severity <= Severity::Warning).cloned().collect();
+            write!(self.err, "{}", render(&shown, &src, &visible, self.color)).map_err(w)?;
+            if verbose {
+                for v in &eval.values {
+                    let bound = if v.value.error_bound > 0.0 {
+                        format!(" (± {:.1e})", v.value.error_bound)
+                    } else {
+                        String::new()
+                    };
+                    writeln!(self.out, "  {} = {}{bound}", v.name, v.value.value).map_err(w)?;
+                }
+            }
+            let passed = eval.expectations.iter().filter(|e| e.passed == Some(true)).count();
+            let failed = eval.expectations.iter().filter(|e| e.passed == Some(false)).count();
+            let open = eval.expectations.len() - passed - failed;
+            let errors = diags.iter().filter(|d| d.is_error()).count();
+            let warnings = diags.iter().filter(|d| d.severity == Severity::Warning).count();
+            let verdict = if errors == 0 { "ok" } else { "FAILED" };
+            writeln!(
+                self.out,
+                "{shown}: {verdict}: {passed} claim(s) passed, {failed} failed, {open} not decided; {errors} error(s), {warnings} warning(s)"
+            )
+            .map_err(w)?;
+            for o in &eval.outputs {
+                writeln!(self.out, "  wrote {o}").map_err(w)?;
+            }
         }
-        if check_only {
-            println!("{}: not formatted", path.display());
-            unformatted = true;
-        } else if let Err(e) = std::fs::write(path, &out) {
-            eprintln!("kelp: cannot write {}: {e}", path.display());
-            return 2;
+        if format == Format::Json {
+            let out = if reports.len() == 1 { reports.pop().unwrap() } else { serde_json::Value::Array(reports) };
+            writeln!(self.out, "{}", serde_json::to_string_pretty(&out).unwrap()).map_err(w)?;
         }
+        Ok(i32::from(any_error))
     }
-    i32::from(unformatted)
+
+    fn fmt(&mut self, files: &[PathBuf], check_only: bool) -> Status {
+        let mut unformatted = false;
+        for path in files {
+            let src =
+                std::fs::read_to_string(path).map_err(|e| format!("kelp: cannot read {}: {e}", path.display()))?;
+            let out = kelp_lang::fmt::format(&src);
+            if out == src {
+                continue;
+            }
+            if check_only {
+                let _ = writeln!(self.out, "{}: not formatted", path.display());
+                unformatted = true;
+            } else {
+                std::fs::write(path, &out).map_err(|e| format!("kelp: cannot write {}: {e}", path.display()))?;
+            }
+        }
+        Ok(i32::from(unformatted))
+    }
 }
