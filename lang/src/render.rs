@@ -13,7 +13,7 @@ pub fn render(path: &str, src: &str, diags: &[Diagnostic], color: bool) -> Strin
             Severity::Warning => (ReportKind::Warning, Color::Yellow),
             Severity::Information | Severity::Hint => (ReportKind::Advice, Color::Cyan),
         };
-        let span = clamp(d.span.range(), src.len());
+        let span = clamp(d.span.range(), src);
         let mut report = Report::build(kind, (path, span.clone()))
             .with_config(Config::default().with_index_type(IndexType::Byte).with_color(color))
             .with_code(d.code.as_str())
@@ -21,7 +21,7 @@ pub fn render(path: &str, src: &str, diags: &[Diagnostic], color: bool) -> Strin
             .with_label(Label::new((path, span)).with_color(c));
         for l in &d.labels {
             report = report.with_label(
-                Label::new((path, clamp(l.span.range(), src.len()))).with_message(&l.message).with_color(Color::Blue),
+                Label::new((path, clamp(l.span.range(), src))).with_message(&l.message).with_color(Color::Blue),
             );
         }
         for n in &d.notes {
@@ -32,6 +32,20 @@ pub fn render(path: &str, src: &str, diags: &[Diagnostic], color: bool) -> Strin
     String::from_utf8_lossy(&out).into_owned()
 }
 
-fn clamp(r: std::ops::Range<usize>, len: usize) -> std::ops::Range<usize> {
-    r.start.min(len)..r.end.min(len)
+/// Keeps a span inside the text and on character boundaries (ariadne slices by it).
+fn clamp(r: std::ops::Range<usize>, src: &str) -> std::ops::Range<usize> {
+    let down = |mut i: usize| {
+        i = i.min(src.len());
+        while !src.is_char_boundary(i) {
+            i -= 1;
+        }
+        i
+    };
+    let start = down(r.start);
+    let mut end = down(r.end).max(start);
+    if end < r.end.min(src.len()) {
+        // Round a cut-off end up to the end of its character.
+        end = src[end..].chars().next().map_or(end, |c| end + c.len_utf8());
+    }
+    start..end
 }

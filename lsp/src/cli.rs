@@ -100,9 +100,12 @@ fn read_source(path: &Path) -> Result<(String, Option<Diagnostic>), String> {
         Err(e) => {
             let at = e.utf8_error().valid_up_to();
             let s = String::from_utf8_lossy(e.as_bytes()).into_owned();
-            let d =
-                Diagnostic::error(Code::BadToken, Span::new(at, at + 1), "the file is not valid UTF-8 from here on")
-                    .with_note("experiment files are UTF-8 text");
+            let d = Diagnostic::error(
+                Code::BadToken,
+                Span::new(at, at + '\u{FFFD}'.len_utf8()),
+                "the file is not valid UTF-8 from here on",
+            )
+            .with_note("experiment files are UTF-8 text");
             (s, Some(d))
         }
     })

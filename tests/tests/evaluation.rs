@@ -1,0 +1,90 @@
+//! Claims evaluated end to end: parse, check, evaluate.
+
+use kelp_evaluator::{evaluate, Mode};
+use kelp_lang::{check, Code};
+
+struct Run {
+    codes: Vec<Code>,
+    passed: Vec<Option<bool>>,
+    details: Vec<String>,
+    messages: Vec<String>,
+}
+
+fn run(src: &str) -> Run {
+    let c = check(src);
+    assert!(!c.has_errors(), "static errors: {:?}", c.diagnostics);
+    let e = evaluate(&c, src, &Mode::Check);
+    Run {
+        codes: e.diagnostics.iter().map(|d| d.code).collect(),
+        passed: e.expectations.iter().map(|x| x.passed).collect(),
+        details: e.expectations.iter().map(|x| x.detail.clone()).collect(),
+        messages: e.diagnostics.iter().map(|d| d.message.clone()).collect(),
+    }
+}
+
+#[test]
+fn exact_arithmetic_decides_exactly() {
+    // 0.1 + 0.2 = 3/10 exactly in rational arithmetic (common practice, no source);
+    // in binary floating point it would differ by 5.55e-17.
+    let r = run("expect 0.1 + 0.2 == 3/10\nexpect 2^-3 == 1/8\nexpect 1/3 != 0.333333\n");
+    assert_eq!(r.passed, vec![Some(true); 3]);
+    assert!(r.codes.is_empty());
+}
+
+#[test]
+fn false_claims_are_errors_with_the_computed_value() {
+    let r = run("let a = 7/2\nexpect a == 3\n");
+    assert_eq!(r.passed, vec![Some(false)]);
+    assert_eq!(r.codes, vec![Code::ClaimFailed]);
+    assert!(r.messages[0].contains("a = 7/2"), "{}", r.messages[0]);
+}
+
+#[test]
+fn numerical_claims_use_the_tolerance() {
+    // (1 + 2i)(3 - i) = 5 + 5i (common practice, no source).
+    let r = run("let w = (1 + 2i) * (3 - i)\nexpect w == 5 + 5i within 1e-14\nexpect w == 5 + 5.1i within 1e-3\n");
+    assert_eq!(r.passed, vec![Some(true), Some(false)]);
+    assert!(r.details[1].contains("difference 1.000e-1"), "{}", r.details[1]);
+    // The file-wide tolerance applies without `within`.
+    let r = run("set tolerance = 0.5\nexpect 1.0 + 0.3i == 1\n");
+    assert_eq!(r.passed, vec![Some(true)]);
+}
+
+#[test]
+fn riemann_matrix_checks_name_the_failing_eigenvalue() {
+    // Im [[0.5, 1], [1, 0.5]] has eigenvalues 1.5 and -0.5 (common practice, no source).
+    let r = run(
+        "let good = [[1.1i, 0.3], [0.3, 0.9i + 0.2]]\nlet flat = [[0.5i, i], [i, 0.5i]]\nlet skew = [[i, 0.5], [0.2, i]]\n\
+         expect is_riemann(good)\nexpect is_riemann(flat)\nexpect is_riemann(skew)\n",
+    );
+    assert_eq!(r.passed, vec![Some(true), Some(false), Some(false)]);
+    assert!(r.messages[0].contains("smallest -0.500000"), "{}", r.messages[0]);
+    assert!(r.messages[1].contains("not symmetric"), "{}", r.messages[1]);
+}
+
+#[test]
+fn matrix_arithmetic() {
+    let r = run("let m = [[1, 2], [3, 4]]\nexpect m * m == [[7, 10], [15, 22]]\nexpect m * [1, 1] == [3, 7]\n\
+         expect (m + m) / 2 == m\nexpect count(m) == 2\n");
+    assert_eq!(r.passed, vec![Some(true); 4]);
+}
+
+#[test]
+fn mathematics_not_built_yet_gives_no_value() {
+    let r = run("curve c: y^2 = x^3 + x^2\nlet g = genus(c)\nexpect g == 0\nexpect degree(c) == 3\n");
+    assert_eq!(r.codes, vec![Code::NotSupported, Code::DependsOnFailed]);
+    assert_eq!(r.passed, vec![None, Some(true)]);
+}
+
+#[test]
+fn evaluation_failures_are_diagnostics() {
+    let r = run("let a = 1/0\nlet b = 0^-1\nexpect 1 + i < 2\n");
+    assert_eq!(r.codes, vec![Code::EvalFailed, Code::EvalFailed, Code::WrongKind]);
+    assert_eq!(r.passed, vec![None]);
+}
+
+#[test]
+fn short_circuit_and_boolean_claims() {
+    let r = run("expect true or 1/0 == 1\nexpect not (1 == 2) and 2 > 1\n");
+    assert_eq!(r.passed, vec![Some(true), Some(true)]);
+}
