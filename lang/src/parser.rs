@@ -9,7 +9,10 @@ use crate::diag::{Code, Diagnostic};
 use crate::lexer::{lex, Token};
 use crate::span::Span;
 use chumsky::error::{RichPattern, RichReason};
+use chumsky::extra::ParserExtra;
 use chumsky::input::{Input as _, ValueInput};
+use chumsky::label::LabelError;
+use chumsky::DefaultExpected;
 use chumsky::prelude::*;
 
 pub struct Parsed {
@@ -36,11 +39,14 @@ pub fn parse(src: &str) -> Parsed {
         .collect();
     // Re-index the groups into the trivia-free token list.
     let mut stmts = Vec::with_capacity(groups.len());
-    let parser = stmt_parser::<TokInput>();
+    // Most statements are fine: parse with a cheap error type first, and only re-parse
+    // a failing statement with rich errors to say what went wrong.
+    let fast = stmt_parser::<TokInput, extra::Default>();
+    let rich = stmt_parser::<TokInput, Extra>();
     let mut at = 0;
     for g in &groups {
         let n = tokens[g.clone()].iter().filter(|(t, _)| !matches!(t, Token::Comment(_) | Token::Newline)).count();
-        stmts.push(parse_group(&parser, &sig[at..at + n], &mut diagnostics));
+        stmts.push(parse_group(&fast, &rich, &sig[at..at + n], &mut diagnostics));
         at += n;
     }
     Parsed { program: Program { stmts, comments }, diagnostics }
@@ -95,8 +101,14 @@ fn split_statements(tokens: &[(Token, Span)], comments: &mut Vec<Comment>) -> Ve
 
 const STATEMENT_KEYWORDS: &str = "`set`, `curve`, `let`, `wave`, `expect`, `sample` or `plot`";
 
-fn parse_group<'t, 's: 't, P>(parser: &P, group: &'t [(Token<'s>, SimpleSpan)], diags: &mut Vec<Diagnostic>) -> Stmt
+fn parse_group<'t, 's: 't, F, P>(
+    fast: &F,
+    rich: &P,
+    group: &'t [(Token<'s>, SimpleSpan)],
+    diags: &mut Vec<Diagnostic>,
+) -> Stmt
 where
+    F: Parser<'t, TokInput<'t, 's>, StmtKind, extra::Default>,
     P: Parser<'t, TokInput<'t, 's>, StmtKind, Extra<'t, 's>>,
 {
     let span = sp(group[0].1).join(sp(group[group.len() - 1].1));
@@ -124,7 +136,11 @@ where
     }
     let eoi: SimpleSpan = (span.end..span.end).into();
     let input = group.map(eoi, (|(t, s)| (t, s)) as fn(&'t (Token<'s>, SimpleSpan)) -> (&'t Token<'s>, &'t SimpleSpan));
-    let (out, errs) = parser.parse(input).into_output_errors();
+    if let Some(kind) = fast.parse(input).into_output() {
+        return Stmt { kind, span };
+    }
+    let input = group.map(eoi, (|(t, s)| (t, s)) as fn(&'t (Token<'s>, SimpleSpan)) -> (&'t Token<'s>, &'t SimpleSpan));
+    let (out, errs) = rich.parse(input).into_output_errors();
     match (out, errs.into_iter().next()) {
         (Some(kind), None) => Stmt { kind, span },
         (_, Some(e)) => {
@@ -230,20 +246,23 @@ fn unescape(quoted: &str) -> String {
     out
 }
 
-fn ident<'t, 's: 't, I>() -> impl Parser<'t, I, Ident, Extra<'t, 's>> + Clone
+fn ident<'t, 's: 't, I, E>() -> impl Parser<'t, I, Ident, E> + Clone + use<'t, 's, I, E>
 where
     I: ValueInput<'t, Token = Token<'s>, Span = SimpleSpan>,
+    E: ParserExtra<'t, I> + 't,
+    E::Error: LabelError<'t, I, &'static str> + LabelError<'t, I, DefaultExpected<'t, Token<'s>>>,
 {
     select! { Token::Ident(s) => s }
         .map_with(|s: &str, e| Ident { name: s.to_string(), span: sp(e.span()) })
         .labelled("name")
 }
 
-fn axis<'t, 's: 't, I>(
-    expr: impl Parser<'t, I, Expr, Extra<'t, 's>> + Clone,
-) -> impl Parser<'t, I, Axis, Extra<'t, 's>> + Clone
+fn axis<'t, 's: 't, I, E, P>(expr: P) -> impl Parser<'t, I, Axis, E> + Clone + use<'t, 's, I, E, P>
 where
+    P: Parser<'t, I, Expr, E> + Clone,
     I: ValueInput<'t, Token = Token<'s>, Span = SimpleSpan>,
+    E: ParserExtra<'t, I> + 't,
+    E::Error: LabelError<'t, I, &'static str> + LabelError<'t, I, DefaultExpected<'t, Token<'s>>>,
 {
     let range = ident()
         .then_ignore(just(Token::In))
@@ -264,9 +283,11 @@ where
     choice((range, fixed)).labelled("axis (`x in A..B` or `t = A`)")
 }
 
-fn expr_parser<'t, 's: 't, I>() -> impl Parser<'t, I, Expr, Extra<'t, 's>> + Clone
+fn expr_parser<'t, 's: 't, I, E>() -> impl Parser<'t, I, Expr, E> + Clone + use<'t, 's, I, E>
 where
     I: ValueInput<'t, Token = Token<'s>, Span = SimpleSpan>,
+    E: ParserExtra<'t, I> + 't,
+    E::Error: LabelError<'t, I, &'static str> + LabelError<'t, I, DefaultExpected<'t, Token<'s>>>,
 {
     recursive(|expr| {
         let literal = select! {
@@ -408,9 +429,11 @@ where
     })
 }
 
-fn stmt_parser<'t, 's: 't, I>() -> impl Parser<'t, I, StmtKind, Extra<'t, 's>> + Clone
+fn stmt_parser<'t, 's: 't, I, E>() -> impl Parser<'t, I, StmtKind, E> + Clone + use<'t, 's, I, E>
 where
     I: ValueInput<'t, Token = Token<'s>, Span = SimpleSpan>,
+    E: ParserExtra<'t, I> + 't,
+    E::Error: LabelError<'t, I, &'static str> + LabelError<'t, I, DefaultExpected<'t, Token<'s>>>,
 {
     let expr = expr_parser();
     let set = just(Token::Set)
