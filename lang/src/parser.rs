@@ -12,8 +12,8 @@ use chumsky::error::{RichPattern, RichReason};
 use chumsky::extra::ParserExtra;
 use chumsky::input::{Input as _, ValueInput};
 use chumsky::label::LabelError;
-use chumsky::DefaultExpected;
 use chumsky::prelude::*;
+use chumsky::DefaultExpected;
 
 pub struct Parsed {
     pub program: Program,
@@ -257,6 +257,28 @@ where
         .labelled("name")
 }
 
+/// `x in A..B [step H]`
+fn range_axis<'t, 's: 't, I, E, P>(expr: P) -> impl Parser<'t, I, Axis, E> + Clone + use<'t, 's, I, E, P>
+where
+    P: Parser<'t, I, Expr, E> + Clone,
+    I: ValueInput<'t, Token = Token<'s>, Span = SimpleSpan>,
+    E: ParserExtra<'t, I> + 't,
+    E::Error: LabelError<'t, I, &'static str> + LabelError<'t, I, DefaultExpected<'t, Token<'s>>>,
+{
+    ident()
+        .then_ignore(just(Token::In))
+        .then(expr.clone())
+        .then_ignore(just(Token::DotDot))
+        .then(expr.clone())
+        .then(just(Token::Step).ignore_then(expr).or_not())
+        .map_with(|(((name, lo), hi), step), e| Axis {
+            name,
+            kind: AxisKind::Range { lo, hi, step },
+            span: sp(e.span()),
+        })
+}
+
+/// A region axis: a range, or `t = A`.
 fn axis<'t, 's: 't, I, E, P>(expr: P) -> impl Parser<'t, I, Axis, E> + Clone + use<'t, 's, I, E, P>
 where
     P: Parser<'t, I, Expr, E> + Clone,
@@ -264,23 +286,12 @@ where
     E: ParserExtra<'t, I> + 't,
     E::Error: LabelError<'t, I, &'static str> + LabelError<'t, I, DefaultExpected<'t, Token<'s>>>,
 {
-    let range = ident()
-        .then_ignore(just(Token::In))
-        .then(expr.clone())
-        .then_ignore(just(Token::DotDot))
-        .then(expr.clone())
-        .then(just(Token::Step).ignore_then(expr.clone()).or_not())
-        .map_with(|(((name, lo), hi), step), e| Axis {
-            name,
-            kind: AxisKind::Range { lo, hi, step },
-            span: sp(e.span()),
-        });
-    let fixed = ident().then_ignore(just(Token::Eq)).then(expr).map_with(|(name, v), e| Axis {
+    let fixed = ident().then_ignore(just(Token::Eq)).then(expr.clone()).map_with(|(name, v), e| Axis {
         name,
         kind: AxisKind::Fixed(v),
         span: sp(e.span()),
     });
-    choice((range, fixed)).labelled("axis (`x in A..B` or `t = A`)")
+    choice((range_axis(expr), fixed)).labelled("axis (`x in A..B` or `t = A`)")
 }
 
 fn expr_parser<'t, 's: 't, I, E>() -> impl Parser<'t, I, Expr, E> + Clone + use<'t, 's, I, E>
@@ -304,15 +315,7 @@ where
 
         let keyword_arg =
             ident().then_ignore(just(Token::Eq)).then(expr.clone()).map(|(name, value)| Arg::Keyword { name, value });
-        let range_arg = ident()
-            .then_ignore(just(Token::In))
-            .then(expr.clone())
-            .then_ignore(just(Token::DotDot))
-            .then(expr.clone())
-            .then(just(Token::Step).ignore_then(expr.clone()).or_not())
-            .map_with(|(((name, lo), hi), step), e| {
-                Arg::Axis(Axis { name, kind: AxisKind::Range { lo, hi, step }, span: sp(e.span()) })
-            });
+        let range_arg = range_axis(expr.clone()).map(Arg::Axis);
         let arg = choice((range_arg, keyword_arg, expr.clone().map(Arg::Positional)));
         let call = ident()
             .then(

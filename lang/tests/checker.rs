@@ -36,6 +36,13 @@ fn names() {
 }
 
 #[test]
+fn lines_that_are_not_statements() {
+    expect_one("foo = 3\n", Code::UnknownStatement, "foo");
+    let c = check("foo = 3\n");
+    assert!(c.diagnostics[0].notes[0].contains("let foo = ..."));
+}
+
+#[test]
 fn forward_references_are_allowed() {
     let c = check("expect b == 2\nlet b = a + 1\nlet a = 1\n");
     assert!(c.diagnostics.is_empty(), "{:?}", c.diagnostics);
