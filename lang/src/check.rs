@@ -30,7 +30,6 @@ pub enum Kind {
     Curve,
     Wave,
     Point {
-        dim: usize,
         projective: bool,
     },
     /// Not known (after an error, or not decidable from the text).
@@ -645,7 +644,7 @@ impl Checker {
                         format!("{what} has {want} coordinates, not {}", coords.len()),
                     );
                 }
-                Kind::Point { dim: coords.len(), projective: *projective }
+                Kind::Point { projective: *projective }
             }
             ExprKind::List(items) => self.infer_list(items),
             ExprKind::Unary { op, operand } => {

@@ -31,23 +31,27 @@ pub fn parse(src: &str) -> Parsed {
     let (tokens, mut diagnostics) = lex(src);
     let mut comments = Vec::new();
     let groups = split_statements(&tokens, &mut comments);
-    let sig: Vec<(Token, SimpleSpan)> = groups
-        .iter()
-        .flat_map(|g| tokens[g.clone()].iter())
-        .filter(|(t, _)| !matches!(t, Token::Comment(_) | Token::Newline))
-        .map(|&(t, s)| (t, SimpleSpan::from(s.range())))
-        .collect();
-    // Re-index the groups into the trivia-free token list.
-    let mut stmts = Vec::with_capacity(groups.len());
+    // One pass: the trivia-free tokens of every statement, and where each one's run ends.
+    let mut sig: Vec<(Token, SimpleSpan)> = Vec::with_capacity(tokens.len());
+    let mut ends = Vec::with_capacity(groups.len());
+    for g in &groups {
+        sig.extend(
+            tokens[g.clone()]
+                .iter()
+                .filter(|(t, _)| !matches!(t, Token::Comment(_) | Token::Newline))
+                .map(|&(t, s)| (t, SimpleSpan::from(s.range()))),
+        );
+        ends.push(sig.len());
+    }
     // Most statements are fine: parse with a cheap error type first, and only re-parse
     // a failing statement with rich errors to say what went wrong.
     let fast = stmt_parser::<TokInput, extra::Default>();
     let rich = stmt_parser::<TokInput, Extra>();
+    let mut stmts = Vec::with_capacity(groups.len());
     let mut at = 0;
-    for g in &groups {
-        let n = tokens[g.clone()].iter().filter(|(t, _)| !matches!(t, Token::Comment(_) | Token::Newline)).count();
-        stmts.push(parse_group(&fast, &rich, &sig[at..at + n], &mut diagnostics));
-        at += n;
+    for end in ends {
+        stmts.push(parse_group(&fast, &rich, &sig[at..end], &mut diagnostics));
+        at = end;
     }
     Parsed { program: Program { stmts, comments }, diagnostics }
 }

@@ -84,6 +84,13 @@ fn stmt(s: &Stmt) -> String {
     }
 }
 
+/// Each source parses to one statement with the given snapshot.
+fn assert_cases(cases: &[(&str, &str)]) {
+    for (src, want) in cases {
+        assert_eq!(one(src), *want, "{src}");
+    }
+}
+
 fn one(src: &str) -> String {
     let p = parse(src);
     assert!(p.diagnostics.is_empty(), "unexpected diagnostics for {src:?}: {:?}", p.diagnostics);
@@ -113,9 +120,7 @@ fn every_statement_kind() {
             "(plot c (axis x (neg 20)..20) (axis y (neg 20)..20) to \"out/c.png\")",
         ),
     ];
-    for (src, want) in cases {
-        assert_eq!(one(src), want, "{src}");
-    }
+    assert_cases(&cases);
 }
 
 #[test]
@@ -132,9 +137,7 @@ fn literals_of_every_kind() {
         ("let m = [[1.1i, 0.3], [0.3, 0.9i]]", "(let m [[1.1i 0.3] [0.3 0.9i]])"),
         ("let e = []", "(let e [])"),
     ];
-    for (src, want) in cases {
-        assert_eq!(one(src), want, "{src}");
-    }
+    assert_cases(&cases);
 }
 
 #[test]
@@ -148,9 +151,7 @@ fn precedence_and_associativity() {
         ("let a = (1 + 2)*3", "(let a (* (paren (+ 1 2)) 3))"),
         ("let a = 1 < 2 or 2 == 3 and true", "(let a (or (< 1 2) (and (== 2 3) true)))"),
     ];
-    for (src, want) in cases {
-        assert_eq!(one(src), want, "{src}");
-    }
+    assert_cases(&cases);
 }
 
 #[test]
