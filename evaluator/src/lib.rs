@@ -6,6 +6,7 @@ pub mod eval;
 pub mod json;
 pub mod linalg;
 pub mod num;
+pub mod theta;
 pub mod value;
 
 pub use eval::{evaluate, Evaluation, Expectation, Mode, NamedValue};
