@@ -50,7 +50,7 @@ impl Evaluation {
 }
 
 /// Why an expression has no value.
-enum Fail {
+pub(crate) enum Fail {
     /// A diagnostic at the place that failed.
     At(Diagnostic),
     /// A name it uses has no value (its own error is reported there).
@@ -59,7 +59,7 @@ enum Fail {
 
 type R = Result<Valued, Fail>;
 
-fn fail(code: Code, span: Span, msg: impl Into<String>) -> Fail {
+pub(crate) fn fail(code: Code, span: Span, msg: impl Into<String>) -> Fail {
     Fail::At(Diagnostic::error(code, span, msg))
 }
 
@@ -72,8 +72,8 @@ pub fn evaluate(checked: &Checked, src: &str, mode: &Mode) -> Evaluation {
     ev.out
 }
 
-struct Evaluator<'a> {
-    checked: &'a Checked,
+pub(crate) struct Evaluator<'a> {
+    pub(crate) checked: &'a Checked,
     src: &'a str,
     env: HashMap<String, Valued>,
     out: Evaluation,
@@ -215,7 +215,7 @@ impl Evaluator<'_> {
         Ok((decision.holds, detail))
     }
 
-    fn expr(&mut self, e: &Expr) -> R {
+    pub(crate) fn expr(&mut self, e: &Expr) -> R {
         let v = self.expr_inner(e)?;
         if let Value::Num(n) = &v.value {
             if !n.is_finite() {
@@ -377,6 +377,7 @@ impl Evaluator<'_> {
                 let r = riemann_check(&to_complex_matrix(m), self.checked.settings.tolerance + v.error_bound);
                 Ok(Valued { value: Value::Bool(r.holds()), error_bound: 0.0, reason: Some(r.reason()) })
             }
+            "theta" => self.theta_call(span, args),
             name => Err(fail(Code::NotSupported, span, not_supported(name))),
         }
     }
@@ -389,7 +390,6 @@ fn not_supported(name: &str) -> String {
             "exact curve algebra (singular points, delta invariants, genus) is not built yet"
         }
         "tau" => "Riemann matrices of curves are not computed yet",
-        "theta" => "Riemann theta functions are not computed yet",
         _ => "KP waves are not computed yet",
     };
     format!("`{name}` is not supported yet: {why}; kelp gives no value rather than a made-up one")

@@ -7,6 +7,7 @@ pub mod json;
 pub mod linalg;
 pub mod num;
 pub mod theta;
+mod theta_fn;
 pub mod value;
 
 pub use eval::{evaluate, Evaluation, Expectation, Mode, NamedValue};

@@ -129,6 +129,8 @@ codes! {
     EvalFailed = "K601": "a value could not be computed (division by zero, bad argument)",
     DependsOnFailed = "K602": "a value depends on one that failed",
     ValueInfo = "K603": "facts about a computed value (information)",
+    NotRiemannMatrix = "K604": "a matrix used as a Riemann matrix is not symmetric or its imaginary part is not positive definite",
+    BudgetExceeded = "K605": "a computation needs more work than its limit allows",
 
     ClaimFailed = "K701": "a claim is false",
     ClaimUndecided = "K702": "a claim cannot be decided within its tolerance",

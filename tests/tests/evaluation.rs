@@ -88,3 +88,30 @@ fn short_circuit_and_boolean_claims() {
     let r = run("expect true or 1/0 == 1\nexpect not (1 == 2) and 2 > 1\n");
     assert_eq!(r.passed, vec![Some(true), Some(true)]);
 }
+
+#[test]
+fn theta_claims_end_to_end() {
+    // theta(0 | i) = pi^(1/4) / Gamma(3/4) = 1.0864348112133080146... (DLMF 20.13 /
+    // the lemniscatic value; digits from mpmath 1.4.1 jtheta(3, 0, exp(-pi))).
+    // The sketch's periodicity claim; an odd characteristic vanishes at 0 (common practice).
+    let r = run("set tolerance = 1e-10\n\
+         let M = [[1.1i, 0.3], [0.3, 0.9i + 0.2]]\n\
+         expect theta([[1i]], [0]) == 1.0864348112133080146 within 1e-13\n\
+         expect theta(M, [0, 0]) == theta(M, [1, 0]) within 1e-12\n\
+         expect abs(theta(M, [0, 0], char = [[1/2, 0], [1/2, 0]])) < 1e-12\n\
+         expect abs(theta(M, [0.1, 0.2], along = [[1, 0]]) - theta(M, [-0.1, -0.2], along = [[1, 0]])) > 0.1\n");
+    assert_eq!(r.passed, vec![Some(true); 4], "{:?}", r.messages);
+}
+
+#[test]
+fn theta_refuses_bad_matrices_at_the_argument() {
+    let src = "let bad = theta([[1i, 2i], [2i, 1i]], [0, 0])\nlet far = theta([[1i]], [300i])\n";
+    let c = check(src);
+    let e = evaluate(&c, src, &Mode::Check);
+    let codes: Vec<Code> = e.diagnostics.iter().map(|d| d.code).collect();
+    assert_eq!(codes, vec![Code::NotRiemannMatrix, Code::EvalFailed]);
+    // K604 points at the matrix argument, and names the failing eigenvalue.
+    let d = &e.diagnostics[0];
+    assert_eq!(&src[d.span.range()], "[[1i, 2i], [2i, 1i]]");
+    assert!(d.message.contains("-1.0"), "{}", d.message);
+}
