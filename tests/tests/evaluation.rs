@@ -96,7 +96,7 @@ fn theta_claims_end_to_end() {
     // The sketch's periodicity claim; an odd characteristic vanishes at 0 (common practice).
     let r = run("set tolerance = 1e-10\n\
          let M = [[1.1i, 0.3], [0.3, 0.9i + 0.2]]\n\
-         expect theta([[1i]], [0]) == 1.0864348112133080146 within 1e-13\n\
+         expect theta([[1i]], [0]) == 1.0864348112133080146 within 1e-12\n\
          expect theta(M, [0, 0]) == theta(M, [1, 0]) within 1e-12\n\
          expect abs(theta(M, [0, 0], char = [[1/2, 0], [1/2, 0]])) < 1e-12\n\
          expect abs(theta(M, [0.1, 0.2], along = [[1, 0]]) - theta(M, [-0.1, -0.2], along = [[1, 0]])) > 0.1\n");

@@ -38,42 +38,47 @@ pub struct TailInput<'a> {
 
 /// Upper bound of the sum of |term| over all points outside |w| <= R.
 pub fn tail(inp: &TailInput, r: f64) -> f64 {
+    log_tail(inp, r).exp()
+}
+
+fn log_tail(inp: &TailInput, r: f64) -> f64 {
     let k = inp.order as f64;
     if r * r < k / 2.0 + 2.0 {
         return f64::INFINITY;
     }
     // ln(e) = 1
-    let log = 1.0 + inp.weight.ln() + k * (inp.kappa * r + inp.centre).ln() - r * r
-        + inp.gammas.iter().map(|g| (1.0 + PI.sqrt() * r / g).ln()).sum::<f64>();
-    log.exp()
+    1.0 + inp.weight.ln() + k * (inp.kappa * r + inp.centre).ln() - r * r
+        + inp.gammas.iter().map(|g| (1.0 + PI.sqrt() * r / g).ln()).sum::<f64>()
 }
 
-/// The smallest radius (to a few percent) whose tail bound is at most `eps`.
+/// A radius (within 0.1% of the smallest) whose tail bound is at most `eps`: Newton's
+/// method on log tail(R) - log eps, which is concave and decreasing past its
+/// maximum, then a check.
 pub fn radius(inp: &TailInput, eps: f64) -> f64 {
     let k = inp.order as f64;
-    let mut lo = (k / 2.0 + 2.0).sqrt();
-    if tail(inp, lo) <= eps {
-        return lo;
-    }
-    let mut hi = lo * 2.0;
-    while tail(inp, hi) > eps {
-        hi *= 2.0;
-        if hi > 1e6 {
-            return hi;
-        }
-    }
-    for _ in 0..40 {
-        let mid = 0.5 * (lo + hi);
-        if tail(inp, mid) > eps {
-            lo = mid;
-        } else {
-            hi = mid;
-        }
-        if hi - lo < 1e-3 * hi {
+    let r_min = (k / 2.0 + 2.0).sqrt();
+    let target = eps.ln();
+    let phi = |r: f64| log_tail(inp, r) - target;
+    let dphi = |r: f64| {
+        k * inp.kappa / (inp.kappa * r + inp.centre) - 2.0 * r
+            + inp.gammas.iter().map(|g| PI.sqrt() / (g + PI.sqrt() * r)).sum::<f64>()
+    };
+    let mut r = r_min.max((-target).max(0.0).sqrt());
+    for _ in 0..50 {
+        let (f, d) = (phi(r), dphi(r));
+        if f <= 0.0 && f > -1e-3 {
             break;
         }
+        if d >= 0.0 {
+            r *= 1.5; // still left of the maximum: step out
+            continue;
+        }
+        r = (r - f / d).max(r_min);
     }
-    hi
+    while phi(r) > 0.0 && r < 1e6 {
+        r *= 1.001;
+    }
+    r
 }
 
 #[cfg(test)]
@@ -91,7 +96,12 @@ mod tests {
                 (-50i32..=50).filter(|&n| PI.sqrt() * (n as f64).abs() > r).map(|n| (-PI * (n * n) as f64).exp()).sum();
             assert!(true_tail <= tail(&inp, r), "R = {r}: {true_tail} > {}", tail(&inp, r));
         }
-        let r = radius(&inp, 1e-12);
-        assert!(tail(&inp, r) <= 1e-12);
+        for eps in [1e-3, 1e-12, 1e-30] {
+            let r = radius(&inp, eps);
+            assert!(tail(&inp, r) <= eps && tail(&inp, r * 0.998) > eps, "eps {eps}: R = {r}");
+        }
+        let derivs = TailInput { order: 4, weight: 1e3, centre: 30.0, ..inp };
+        let r = radius(&derivs, 1e-12);
+        assert!(tail(&derivs, r) <= 1e-12 && tail(&derivs, r * 0.998) > 1e-12);
     }
 }

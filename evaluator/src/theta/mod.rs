@@ -12,17 +12,22 @@
 //! Work that depends only on tau (Cholesky factor, LLL reduction of the summation
 //! lattice, inverses) is done once in [`ThetaContext::new`] and reused for every z.
 
+pub mod bench_cases;
 pub mod bound;
 pub mod lattice;
 pub mod siegel;
+mod sum;
 
 use bound::TailInput;
 use nalgebra::{DMatrix, DVector, SymmetricEigen};
 use num_complex::Complex64 as C64;
 use std::f64::consts::PI;
 
+/// Radius of the exponential tables built with a context (see `sum`).
+const TABLE_RADIUS: f64 = 9.0;
+
 /// Lattice points one evaluation may visit before it is refused.
-pub const MAX_POINTS: f64 = 4.0e6;
+pub const MAX_POINTS: f64 = 2.0e7;
 
 #[derive(Clone, Debug, PartialEq)]
 pub enum ThetaError {
@@ -133,7 +138,7 @@ pub struct ThetaContext {
     g: usize,
     tau: DMatrix<C64>,
     re: DMatrix<f64>,
-    yinv: DMatrix<f64>,
+    ychol: nalgebra::Cholesky<f64, nalgebra::Dyn>,
     /// LLL transform of the summation lattice (columns: reduced basis) and its inverse.
     u: DMatrix<i64>,
     uinv: DMatrix<i64>,
@@ -144,12 +149,10 @@ pub struct ThetaContext {
     /// ||Y||_2 * ||Y^-1||_2 and ||Y||_2, for the rounding estimate.
     cond: f64,
     ynorm: f64,
-    /// First reduced basis vector (the direction of the innermost lines) and tau times it.
-    u1: Vec<f64>,
-    tau_u1: Vec<C64>,
-    /// exp(2 pi i u1^T tau u1): the second-order ratio along a line.
-    q: C64,
-    quad_u1: C64,
+    /// tau' = U^T tau U, the diagonal of (Y')^-1, and the exponential tables of tau'.
+    taur: DMatrix<C64>,
+    yred_inv_diag: Vec<f64>,
+    tables: sum::Tables,
 }
 
 impl ThetaContext {
@@ -191,22 +194,33 @@ impl ThetaContext {
         if lo <= 0.0 || y.clone().cholesky().is_none() {
             return Err(ThetaError::NotPositiveDefinite { smallest: lo });
         }
-        let yinv = y.clone().try_inverse().ok_or(ThetaError::NotPositiveDefinite { smallest: lo })?;
+        let ychol = y.clone().cholesky().ok_or(ThetaError::NotPositiveDefinite { smallest: lo })?;
         let u = if reduce { lattice::lll(&y) } else { DMatrix::identity(g, g) };
         let uinv = lattice::unimodular_inverse(&u);
         let uf = u.map(|v| v as f64);
         let yred = uf.transpose() * &y * &uf;
         let c = lattice::upper_cholesky(&yred, PI).ok_or(ThetaError::NotPositiveDefinite { smallest: lo })?;
         let gammas = (0..g).map(|j| c[(j, j)]).collect();
-        let u1: Vec<f64> = (0..g).map(|i| uf[(i, 0)]).collect();
-        let tau_u1: Vec<C64> = (0..g).map(|i| (0..g).map(|j| tau[(i, j)] * u1[j]).sum()).collect();
-        let quad_u1: C64 = (0..g).map(|i| tau_u1[i] * u1[i]).sum();
-        let q = (C64::new(0.0, 2.0 * PI) * quad_u1).exp();
+        let ucx = uf.map(|v| C64::new(v, 0.0));
+        let taur = ucx.transpose() * &tau * &ucx;
+        let yred_inv = yred.clone().try_inverse().ok_or(ThetaError::NotPositiveDefinite { smallest: lo })?;
+        let yred_inv_diag: Vec<f64> = (0..g).map(|j| yred_inv[(j, j)]).collect();
+        // Tables wide enough for truncation far below double precision (R = 9: a tail of
+        // about e^-81) unless that would be large; wider requests build their own.
+        let mut half = sum::half_widths(&yred_inv_diag, TABLE_RADIUS);
+        let cells = |h: &[i64]| -> f64 {
+            let w: Vec<f64> = h.iter().map(|&v| (2 * v + 1) as f64).collect();
+            (0..g).map(|j| w[j] * (1.0 + w[j + 1..].iter().sum::<f64>())).sum()
+        };
+        while cells(&half) > 4.0e6 && half.iter().any(|&v| v > 1) {
+            half.iter_mut().for_each(|v| *v = (*v / 2).max(1));
+        }
+        let tables = sum::Tables::new(&taur, half);
         Ok(ThetaContext {
             g,
             tau,
             re,
-            yinv,
+            ychol,
             u,
             uinv,
             c,
@@ -214,10 +228,9 @@ impl ThetaContext {
             kappa: 1.0 / (PI * lo).sqrt(),
             cond: hi / lo,
             ynorm: hi,
-            u1,
-            tau_u1,
-            q,
-            quad_u1,
+            taur,
+            yred_inv_diag,
+            tables,
         })
     }
 
@@ -270,6 +283,46 @@ impl ThetaContext {
         monos: &[Vec<u32>],
         accuracy: f64,
     ) -> Result<(Vec<ThetaValue>, SumStats), ThetaError> {
+        let (mut v, stats) = self.pass(&[z], ch, dirs, monos, accuracy)?;
+        Ok((v.swap_remove(0), stats))
+    }
+
+    /// [`ThetaContext::sums`] for many z at once. Runs of z that share Im z (as along a
+    /// KP wave with real U, V, W, D) share one pass over the lattice, so only the phases
+    /// are computed per z.
+    pub fn batch(
+        &self,
+        zs: &[Vec<C64>],
+        ch: Option<&Characteristic>,
+        dirs: &[Vec<C64>],
+        monos: &[Vec<u32>],
+        accuracy: f64,
+    ) -> Result<Vec<Vec<ThetaValue>>, ThetaError> {
+        let mut out = Vec::with_capacity(zs.len());
+        let mut i = 0;
+        while i < zs.len() {
+            let same_im = |z: &Vec<C64>| z.len() == zs[i].len() && z.iter().zip(&zs[i]).all(|(a, b)| a.im == b.im);
+            let mut j = i + 1;
+            while j < zs.len() && j - i < 256 && same_im(&zs[j]) {
+                j += 1;
+            }
+            let group: Vec<&[C64]> = zs[i..j].iter().map(Vec::as_slice).collect();
+            out.extend(self.pass(&group, ch, dirs, monos, accuracy)?.0);
+            i = j;
+        }
+        Ok(out)
+    }
+
+    /// One pass over the lattice for z's sharing Im z.
+    fn pass(
+        &self,
+        zs: &[&[C64]],
+        ch: Option<&Characteristic>,
+        dirs: &[Vec<C64>],
+        monos: &[Vec<u32>],
+        accuracy: f64,
+    ) -> Result<(Vec<Vec<ThetaValue>>, SumStats), ThetaError> {
+        let z = zs[0];
         let g = self.g;
         if z.len() != g {
             return Err(ThetaError::WrongLength { what: "z", expected: g, found: z.len() });
@@ -285,19 +338,29 @@ impl ThetaContext {
             return Err(ThetaError::WrongLength { what: "the characteristic", expected: g, found: ch.a.len() });
         }
         let finite = |v: &C64| v.re.is_finite() && v.im.is_finite();
-        if !z.iter().all(finite)
+        if zs.iter().any(|z| z.len() != g || z.iter().zip(zs[0]).any(|(a, b)| a.im != b.im)) {
+            return Err(ThetaError::WrongLength { what: "z", expected: g, found: 0 });
+        }
+        if !zs.iter().all(|z| z.iter().all(finite))
             || !dirs.iter().flatten().all(finite)
             || !ch.a.iter().chain(&ch.b).all(|v| v.is_finite())
         {
             return Err(ThetaError::NotFinite);
         }
         let yv = DVector::from_iterator(g, z.iter().map(|v| v.im));
-        let cvec = &self.yinv * &yv;
+        // A Cholesky solve, not the explicit inverse: for ill-conditioned Y the inverse
+        // loses digits that exp(pi y^T Y^-1 y) would amplify.
+        let cvec = self.ychol.solve(&yv);
         let log_factor = PI * yv.dot(&cvec);
-        // Centre in reduced coordinates: s = U^-1 (a + c).
-        let ac: Vec<f64> = (0..g).map(|i| ch.a[i] + cvec[i]).collect();
-        let s: Vec<f64> = (0..g).map(|i| (0..g).map(|j| self.uinv[(i, j)] as f64 * ac[j]).sum()).collect();
         let cnorm = cvec.norm();
+        let uf = |i: usize, j: usize| self.u[(i, j)] as f64;
+        // Centre in reduced coordinates s = U^-1 (a + c); re-index the series by the
+        // nearest lattice point so that the centre lies within 1/2 of the origin.
+        let s0: Vec<f64> =
+            (0..g).map(|i| (0..g).map(|j| self.uinv[(i, j)] as f64 * (ch.a[j] + cvec[j])).sum()).collect();
+        let n0: Vec<f64> = s0.iter().map(|v| -v.round()).collect();
+        let s: Vec<f64> = (0..g).map(|i| s0[i] + n0[i]).collect();
+        let a2: Vec<f64> = (0..g).map(|i| ch.a[i] + (0..g).map(|j| uf(i, j) * n0[j]).sum::<f64>()).collect();
 
         let max_order = monos.iter().map(|m| m.iter().sum::<u32>()).max().unwrap_or(0);
         let weight = monos
@@ -317,45 +380,103 @@ impl ThetaContext {
         if estimate > MAX_POINTS {
             return Err(ThetaError::TooManyPoints { estimate });
         }
-
-        let zb: Vec<C64> = (0..g).map(|i| z[i] + ch.b[i]).collect();
-        let xb: Vec<f64> = zb.iter().map(|v| v.re).collect();
-        let u1_zb: C64 = (0..g).map(|i| zb[i] * self.u1[i]).sum();
-        let beta: Vec<C64> =
-            dirs.iter().map(|d| C64::new(0.0, 2.0 * PI) * (0..g).map(|i| d[i] * self.u1[i]).sum::<C64>()).collect();
-        let mut walk = Walk {
-            ctx: self,
-            a: &ch.a,
-            s: &s,
-            xb: &xb,
-            u1_zb,
-            dirs,
-            beta: &beta,
-            monos,
-            acc: vec![C64::new(0.0, 0.0); monos.len()],
-            abs: vec![0.0; monos.len()],
-            n: vec![0i64; g],
-            points: 0,
-            lines: 0,
-            max_growth: 0.0,
-            alpha: vec![C64::new(0.0, 0.0); dirs.len()],
-            powers: vec![Vec::new(); dirs.len()],
+        // Enumerate a hair wider than the bound's radius: the centre carries rounding.
+        let r_enum = radius * (1.0 + 1e-9) + 1e-12;
+        let need = sum::half_widths(&self.yred_inv_diag, r_enum);
+        let local;
+        let tables = if need.iter().zip(&self.tables.half).all(|(n, h)| n <= h) {
+            &self.tables
+        } else {
+            local = sum::Tables::new(&self.taur, need.clone());
+            &local
         };
-        walk.level(g - 1, radius * radius, 0.0);
 
-        // Rounding: each term carries a relative error of a few ulps per operation, grown by
-        // the recurrence along a line, the size of its phase, and the centre's own error.
-        // The centre c = Y^-1 Im z carries an error of about eps cond(Y) |c|, which moves
-        // the modulus of a term by at most 2 sqrt(pi) R |error| ||Y||^(1/2).
+        let i2pi = C64::new(0.0, 2.0 * PI);
+        // Per z: L = 2 pi i U^T (tau a' + z + b), of which only the phase is used (the
+        // moduli come from the enumeration), and the phase of
+        // pi i a'^T tau a' + 2 pi i a'^T (z + b).
+        let phase = |v: C64| C64::new(0.0, v.im).exp();
+        let mut pows = Vec::with_capacity(zs.len());
+        let mut kfacs = Vec::with_capacity(zs.len());
+        let (mut l_size, mut l0_size, mut k_size) = (0.0f64, 0.0f64, 0.0f64);
+        for z in zs {
+            let zb: Vec<C64> = (0..g).map(|i| z[i] + ch.b[i]).collect();
+            let v: Vec<C64> = (0..g).map(|i| (0..g).map(|j| self.tau[(i, j)] * a2[j]).sum::<C64>() + zb[i]).collect();
+            let l: Vec<C64> = (0..g).map(|j| i2pi * (0..g).map(|i| v[i] * uf(i, j)).sum::<C64>()).collect();
+            let pow: Vec<Vec<C64>> = (0..g)
+                .map(|j| {
+                    let h = tables.half[j];
+                    let (e, einv) = (phase(l[j]), phase(-l[j]));
+                    let mut p = vec![C64::new(1.0, 0.0); (2 * h + 1) as usize];
+                    for k in 1..=h as usize {
+                        p[h as usize + k] = p[h as usize + k - 1] * e;
+                        p[h as usize - k] = p[h as usize - k + 1] * einv;
+                    }
+                    p
+                })
+                .collect();
+            let mut k_arg = 0.0;
+            for i in 0..g {
+                let row: f64 = (0..g).map(|j| self.re[(i, j)] * a2[j]).sum();
+                k_arg += a2[i] * (PI * row + 2.0 * PI * zb[i].re);
+            }
+            l_size = l_size.max((0..g).map(|j| l[j].norm() * need[j] as f64).sum::<f64>());
+            l0_size = l0_size.max(l[0].norm());
+            k_size = k_size.max(k_arg.abs());
+            pows.push(pow);
+            kfacs.push(C64::new(0.0, k_arg).exp());
+        }
+        let rdirs: Vec<Vec<C64>> = dirs
+            .iter()
+            .map(|d| (0..g).map(|j| i2pi * (0..g).map(|i| d[i] * uf(i, j)).sum::<C64>()).collect())
+            .collect();
+        let dir_const: Vec<C64> = dirs.iter().map(|d| i2pi * (0..g).map(|i| d[i] * a2[i]).sum::<C64>()).collect();
+        let out = sum::run(&sum::SumInput {
+            tables,
+            c: &self.c,
+            s: &s,
+            r2: r_enum * r_enum,
+            pow: &pows,
+            k: &kfacs,
+            q: (i2pi * self.taur[(0, 0)]).exp(),
+            dirs: &rdirs,
+            dir_const: &dir_const,
+            monos,
+        });
+
+        // Rounding: each factor exp(v) carries a relative error of about eps |v| from the
+        // rounding of v; the tables, powers and line recurrences multiply such factors.
+        let h: Vec<f64> = need.iter().map(|&v| v as f64).collect();
+        let nsum: f64 = h.iter().sum();
+        let taumax = self.taur.iter().map(|v| v.norm()).fold(0.0, f64::max);
+        let t00 = self.taur[(0, 0)].norm();
+        let line = out.max_line as f64;
+        let ratio_arg = PI * t00 * (2.0 * h[0] + 1.0)
+            + l0_size
+            + 2.0 * PI * (1..g).map(|k| self.taur[(0, k)].norm() * h[k]).sum::<f64>();
+        let growth = 16.0
+            + 4.0 * (g * g) as f64
+            + PI * taumax * nsum * nsum
+            + l_size
+            + k_size
+            + radius * radius
+            + line * ratio_arg
+            + line * line * PI * t00;
+        // The centre c = Y^-1 Im z carries an error of about eps cond(Y) |c|, moving a
+        // term's modulus by at most 2 sqrt(pi) R |error| ||Y||^(1/2).
         let centre_err = 2.0 * PI.sqrt() * radius * self.cond * cnorm * self.ynorm.sqrt();
-        let rel = f64::EPSILON * (16.0 + walk.max_growth + centre_err);
-        let values = walk
+        let rel = f64::EPSILON * (growth + centre_err);
+        let values = out
             .acc
             .iter()
-            .zip(&walk.abs)
-            .map(|(v, a)| ThetaValue { log_factor, value: *v, error: truncation + a * rel })
+            .map(|acc| {
+                acc.iter()
+                    .zip(&out.abs)
+                    .map(|(v, a)| ThetaValue { log_factor, value: *v, error: truncation + a * rel })
+                    .collect()
+            })
             .collect();
-        Ok((values, SumStats { points: walk.points, lines: walk.lines, radius }))
+        Ok((values, SumStats { points: out.points, lines: out.lines, radius }))
     }
 }
 
@@ -363,142 +484,16 @@ fn norm(d: &[C64]) -> f64 {
     d.iter().map(|v| v.norm_sqr()).sum::<f64>().sqrt()
 }
 
-/// Volume estimate of the number of lattice points in the ellipsoid (plus its boundary
-/// layer), used to refuse hopeless requests before enumerating.
+/// Volume estimate of the number of lattice points in the ellipsoid, each semi-axis
+/// widened by one lattice step, used to refuse hopeless requests before enumerating.
 fn ellipsoid_points(r: f64, gammas: &[f64]) -> f64 {
-    gammas.iter().map(|g| 2.0 * r / g + 1.0).product()
-}
-
-/// The enumeration state of one sum.
-struct Walk<'a> {
-    ctx: &'a ThetaContext,
-    a: &'a [f64],
-    s: &'a [f64],
-    xb: &'a [f64],
-    u1_zb: C64,
-    dirs: &'a [Vec<C64>],
-    beta: &'a [C64],
-    monos: &'a [Vec<u32>],
-    acc: Vec<C64>,
-    abs: Vec<f64>,
-    n: Vec<i64>,
-    points: usize,
-    lines: usize,
-    /// Largest relative rounding growth (in ulps) of a term on any line.
-    max_growth: f64,
-    alpha: Vec<C64>,
-    powers: Vec<Vec<C64>>,
-}
-
-impl Walk<'_> {
-    /// Enumerates coordinate `j` of the reduced lattice point given the later ones;
-    /// `r2` is the remaining squared radius and `used` the squared norm so far.
-    fn level(&mut self, j: usize, r2: f64, used: f64) {
-        let c = &self.ctx.c;
-        let g = self.ctx.g;
-        let gj = c[(j, j)];
-        let mut partial = 0.0;
-        for k in j + 1..g {
-            partial += c[(j, k)] * (self.n[k] as f64 + self.s[k]);
-        }
-        let centre = self.s[j] + partial / gj;
-        let half = r2.max(0.0).sqrt() / gj;
-        let lo = (-centre - half).ceil() as i64;
-        let hi = (-centre + half).floor() as i64;
-        if lo > hi {
-            return;
-        }
-        if j == 0 {
-            self.line(lo, hi, centre, used);
-            return;
-        }
-        for v in lo..=hi {
-            self.n[j] = v;
-            let w = gj * (v as f64 + centre);
-            self.level(j - 1, r2 - w * w, used + w * w);
-        }
+    // Volume of the unit ball: V_0 = 1, V_1 = 2, V_n = 2 pi V_(n-2) / n.
+    let n = gammas.len();
+    let mut v = [1.0, 2.0];
+    for k in 2..=n {
+        v[k % 2] *= 2.0 * PI / k as f64;
     }
-
-    /// The innermost line n_0 = lo..=hi: one exponential at its start, then the
-    /// recurrence t(k+1) = t(k) rho(k), rho(k+1) = rho(k) q.
-    fn line(&mut self, lo: i64, hi: i64, centre: f64, used: f64) {
-        let ctx = self.ctx;
-        let g = ctx.g;
-        self.n[0] = lo;
-        // m = U n + a at the start of the line.
-        let m: Vec<f64> =
-            (0..g).map(|i| (0..g).map(|k| ctx.u[(i, k)] as f64 * self.n[k] as f64).sum::<f64>() + self.a[i]).collect();
-        let w0 = ctx.c[(0, 0)] * (lo as f64 + centre);
-        let mut phase = 0.0;
-        for i in 0..g {
-            let mut row = 0.0;
-            for k in 0..g {
-                row += ctx.re[(i, k)] * m[k];
-            }
-            phase += m[i] * (PI * row + 2.0 * PI * self.xb[i]);
-        }
-        let e0 = C64::new(-(used + w0 * w0), phase);
-        let mut t = e0.exp();
-        let tau_m: C64 = (0..g).map(|i| ctx.tau_u1[i] * m[i]).sum();
-        let rho_arg = C64::new(0.0, PI) * (ctx.quad_u1 + 2.0 * tau_m + 2.0 * self.u1_zb);
-        let mut rho = rho_arg.exp();
-        let len = (hi - lo + 1) as usize;
-        // exp(v) carries a relative error of about eps |v| from the rounding of v; along the
-        // line the errors of rho and q accumulate linearly and quadratically.
-        let l = len as f64;
-        let growth = e0.norm() + l * rho_arg.norm() + 0.5 * l * l * 2.0 * PI * ctx.quad_u1.norm() + 4.0 * l;
-        self.max_growth = self.max_growth.max(growth);
-        self.points += len;
-        self.lines += 1;
-        let plain = self.dirs.is_empty();
-        if plain {
-            let mut sum = C64::new(0.0, 0.0);
-            let mut abs = 0.0;
-            for _ in 0..len {
-                sum += t;
-                abs += t.re.abs() + t.im.abs();
-                t *= rho;
-                rho *= ctx.q;
-            }
-            for (acc, a) in self.acc.iter_mut().zip(self.abs.iter_mut()) {
-                *acc += sum;
-                *a += abs;
-            }
-            return;
-        }
-        // Derivative weights 2 pi i m(k).d = alpha + k' beta along the line.
-        for (i, d) in self.dirs.iter().enumerate() {
-            self.alpha[i] = C64::new(0.0, 2.0 * PI) * (0..g).map(|k| d[k] * m[k]).sum::<C64>();
-        }
-        let maxe: Vec<u32> =
-            (0..self.dirs.len()).map(|i| self.monos.iter().map(|mo| mo[i]).max().unwrap_or(0)).collect();
-        for step in 0..len {
-            for i in 0..self.dirs.len() {
-                let s = self.alpha[i] + self.beta[i] * step as f64;
-                let p = &mut self.powers[i];
-                p.clear();
-                let mut cur = C64::new(1.0, 0.0);
-                p.push(cur);
-                for _ in 0..maxe[i] {
-                    cur *= s;
-                    p.push(cur);
-                }
-            }
-            let tabs = t.re.abs() + t.im.abs();
-            for (mi, mo) in self.monos.iter().enumerate() {
-                let mut w = C64::new(1.0, 0.0);
-                for (i, &e) in mo.iter().enumerate() {
-                    if e > 0 {
-                        w *= self.powers[i][e as usize];
-                    }
-                }
-                self.acc[mi] += t * w;
-                self.abs[mi] += tabs * w.norm();
-            }
-            t *= rho;
-            rho *= ctx.q;
-        }
-    }
+    v[n % 2] * gammas.iter().map(|g| r / g + 1.0).product::<f64>()
 }
 
 #[cfg(test)]

@@ -243,3 +243,50 @@ fn siegel_reduction_is_symplectic_and_keeps_invariants() {
     assert!(s.tau[(0, 0)].norm() >= 1.0 - 1e-9);
     assert!(s.inversions > 0);
 }
+
+#[test]
+fn a_batch_equals_single_evaluations() {
+    // Points along a real line z = U x + D share Im z and so share one lattice pass.
+    let t = tau3();
+    let ctx = ThetaContext::new(&t, 0.0).unwrap();
+    let d = z3();
+    let u = [c(0.7, 0.0), c(-0.3, 0.0), c(1.1, 0.0)];
+    let mut zs: Vec<Vec<C64>> = (0..12).map(|k| (0..3).map(|i| d[i] + u[i] * (k as f64 * 0.37)).collect()).collect();
+    zs.push(vec![c(0.1, 0.9), c(0.0, -0.4), c(0.3, 0.2)]); // a different Im z: its own pass
+    let dirs = vec![u.to_vec()];
+    let monos: Vec<Vec<u32>> = (0..=4).map(|k| vec![k]).collect();
+    let batch = ctx.batch(&zs, None, &dirs, &monos, 1e-13).unwrap();
+    for (z, got) in zs.iter().zip(&batch) {
+        let (one, _) = ctx.sums(z, None, &dirs, &monos, 1e-13).unwrap();
+        for (a, b) in got.iter().zip(&one) {
+            assert!(close(a.full(), b.full(), 1e-13 * (1.0 + a.full().norm())), "{a:?} vs {b:?}");
+        }
+    }
+}
+
+#[test]
+fn genus_eight_block_diagonal_and_quasi_periodicity() {
+    // tau = tau_a (+) tau_b with genus 4 + 4: theta factors (common practice, no source),
+    // and quasi-periodicity holds at genus 8.
+    let cases = super::bench_cases::cases();
+    let four: Vec<&DMatrix<C64>> = cases.iter().filter(|c| c.tau.nrows() == 4).map(|c| &c.tau).collect();
+    let mut t = DMatrix::from_element(8, 8, c(0.0, 0.0));
+    t.view_mut((0, 0), (4, 4)).copy_from(four[0]);
+    t.view_mut((4, 4), (4, 4)).copy_from(four[1]);
+    let z: Vec<C64> = (0..8).map(|i| c(0.1 * i as f64 - 0.3, 0.05 * (i % 3) as f64)).collect();
+    let ch = Characteristic { a: vec![0.5, 0.0, 0.0, 0.5, 0.0, 0.5, 0.0, 0.0], b: vec![0.0; 8] };
+    let big = ThetaContext::new(&t, 0.0).unwrap().eval(&z, Some(&ch), &[], 1e-12).unwrap();
+    let part = |m: &DMatrix<C64>, r: std::ops::Range<usize>| {
+        let chp = Characteristic { a: ch.a[r.clone()].to_vec(), b: ch.b[r.clone()].to_vec() };
+        ThetaContext::new(m, 0.0).unwrap().eval(&z[r], Some(&chp), &[], 1e-13).unwrap().full()
+    };
+    let prod = part(four[0], 0..4) * part(four[1], 4..8);
+    assert!(close(big.full(), prod, big.full_error() + 1e-12), "{} vs {prod}", big.full());
+    // theta(z + tau e_5) = exp(-pi i tau_55 - 2 pi i z_5) theta(z), characteristic zero.
+    let ctx = ThetaContext::new(&t, 0.0).unwrap();
+    let base = ctx.eval(&z, None, &[], 1e-12).unwrap().full();
+    let zq: Vec<C64> = (0..8).map(|i| z[i] + t[(i, 5)]).collect();
+    let moved = ctx.eval(&zq, None, &[], 1e-12).unwrap();
+    let f = (c(0.0, -PI) * t[(5, 5)] - c(0.0, 2.0 * PI) * z[5]).exp();
+    assert!(close(moved.full(), f * base, moved.full_error() + 1e-11 * (f * base).norm()));
+}
