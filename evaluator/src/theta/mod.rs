@@ -498,3 +498,37 @@ fn ellipsoid_points(r: f64, gammas: &[f64]) -> f64 {
 
 #[cfg(test)]
 mod tests;
+
+/// Derivatives of log theta of orders 1..=4 along one direction, from the jet
+/// [theta, D theta, ..., D^4 theta] of one pass (the exponential factors cancel), each
+/// with a first-order error estimate. Fewer jet entries give fewer orders.
+pub fn log_jet(jet: &[ThetaValue]) -> Vec<(C64, f64)> {
+    let Some(d0) = jet.first() else { return vec![] };
+    let den = d0.value.norm() - d0.error;
+    if den <= 0.0 {
+        // theta may vanish here: its logarithm has no derivatives to report.
+        return vec![(C64::new(f64::NAN, f64::NAN), f64::INFINITY); jet.len().saturating_sub(1)];
+    }
+    // Ratios r_k = D^k theta / theta and their error bounds.
+    let r: Vec<C64> = jet.iter().map(|v| v.value / d0.value).collect();
+    let dr: Vec<f64> = jet.iter().map(|v| (v.error + (v.value / d0.value).norm() * d0.error) / den).collect();
+    let z = C64::new(0.0, 0.0);
+    let g = |k: usize| if k < r.len() { r[k] } else { z };
+    let (r1, r2, r3, r4) = (g(1), g(2), g(3), g(4));
+    // Faa di Bruno for log: l1 = r1, l2 = r2 - r1^2, l3 = r3 - 3 r1 r2 + 2 r1^3,
+    // l4 = r4 - 4 r1 r3 - 3 r2^2 + 12 r1^2 r2 - 6 r1^4; errors by the partial derivatives.
+    let e = |k: usize| if k < dr.len() { dr[k] } else { 0.0 };
+    let n = |c: C64| c.norm();
+    let out = [
+        (r1, e(1)),
+        (r2 - r1 * r1, e(2) + 2.0 * n(r1) * e(1)),
+        (r3 - 3.0 * r1 * r2 + 2.0 * r1 * r1 * r1, e(3) + 3.0 * n(r1) * e(2) + (3.0 * n(r2) + 6.0 * n(r1 * r1)) * e(1)),
+        (
+            r4 - 4.0 * r1 * r3 - 3.0 * r2 * r2 + 12.0 * r1 * r1 * r2 - 6.0 * r1 * r1 * r1 * r1,
+            e(4) + 4.0 * n(r1) * e(3)
+                + (6.0 * n(r2) + 12.0 * n(r1 * r1)) * e(2)
+                + (4.0 * n(r3) + 24.0 * n(r1 * r2) + 24.0 * n(r1 * r1 * r1)) * e(1),
+        ),
+    ];
+    out[..jet.len().saturating_sub(1).min(4)].to_vec()
+}

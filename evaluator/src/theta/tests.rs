@@ -290,3 +290,92 @@ fn genus_eight_block_diagonal_and_quasi_periodicity() {
     let f = (c(0.0, -PI) * t[(5, 5)] - c(0.0, 2.0 * PI) * z[5]).exp();
     assert!(close(moved.full(), f * base, moved.full_error() + 1e-11 * (f * base).norm()));
 }
+
+#[test]
+fn log_derivatives_match_a_cauchy_integral_of_log_theta() {
+    // d^k/ds^k log theta(z + s d) at s = 0 by a Cauchy integral over a small circle:
+    // an independent route to the same numbers (common practice, no source).
+    let t = tau3();
+    let ctx = ThetaContext::new(&t, 0.0).unwrap();
+    let z = z3();
+    let d = vec![c(0.4, 0.0), c(-0.9, 0.0), c(0.2, 0.0)];
+    let jet = ctx.jet(&z, None, &d, 4, 1e-14).unwrap();
+    let l = log_jet(&jet);
+    let (r, n) = (0.05, 64);
+    let mut fact = 1.0;
+    for k in 1..=4 {
+        fact *= k as f64;
+        let mut s = c(0.0, 0.0);
+        for i in 0..n {
+            let e = c(0.0, 2.0 * PI * i as f64 / n as f64).exp();
+            let zp: Vec<C64> = (0..3).map(|j| z[j] + d[j] * e * r).collect();
+            let v = ctx.eval(&zp, None, &[], 1e-15).unwrap();
+            s += (v.value.ln() + v.log_factor) / e.powi(k);
+        }
+        let want = s * fact / (n as f64 * r.powi(k));
+        assert!(
+            close(l[k as usize - 1].0, want, 1e-8 * (1.0 + want.norm())),
+            "order {k}: {:?} vs {want}",
+            l[k as usize - 1]
+        );
+        assert!(l[k as usize - 1].1 < 1e-9 * (1.0 + want.norm()), "{:?}", l[k as usize - 1]);
+    }
+}
+
+mod properties {
+    use super::*;
+    use proptest::prelude::*;
+
+    /// A random Riemann matrix of genus 1..=3: Im = A A^T + 0.3 I, Re in [-2, 2].
+    fn riemann() -> impl Strategy<Value = DMatrix<C64>> {
+        (1usize..=3).prop_flat_map(|g| {
+            (Just(g), prop::collection::vec(-1.0f64..1.0, g * g), prop::collection::vec(-2.0f64..2.0, g * g)).prop_map(
+                |(g, a, re)| {
+                    let a = DMatrix::from_vec(g, g, a);
+                    let y = &a * a.transpose() + DMatrix::identity(g, g) * 0.3;
+                    DMatrix::from_fn(g, g, |i, j| c(re[i.min(j) * g + i.max(j)], y[(i, j)]))
+                },
+            )
+        })
+    }
+
+    proptest! {
+        #![proptest_config(ProptestConfig::with_cases(48))]
+
+        /// Periodicity, quasi-periodicity, parity and reduction invariance on random
+        /// matrices and points (classical identities, DLMF 21.3).
+        #[test]
+        fn identities_hold_on_random_matrices(t in riemann(), zr in prop::collection::vec(-1.0f64..1.0, 6),
+                                              j in 0usize..3, bits in 0u32..64) {
+            let g = t.nrows();
+            let j = j % g;
+            let z: Vec<C64> = (0..g).map(|i| c(zr[i], 0.5 * zr[i + 3])).collect();
+            let ch = Characteristic {
+                a: (0..g).map(|i| ((bits >> i) & 1) as f64 / 2.0).collect(),
+                b: (0..g).map(|i| ((bits >> (i + 3)) & 1) as f64 / 2.0).collect(),
+            };
+            let ctx = ThetaContext::new(&t, 0.0).unwrap();
+            let raw = ThetaContext::with_reduction(&t, 0.0, false).unwrap();
+            let v = ctx.eval(&z, Some(&ch), &[], 1e-13).unwrap();
+            let w = raw.eval(&z, Some(&ch), &[], 1e-13).unwrap();
+            prop_assert!(close(v.full(), w.full(), v.full_error() + w.full_error()));
+            // theta[a;b](z + e_j) = exp(2 pi i a_j) theta[a;b](z)
+            let mut zp = z.clone();
+            zp[j] += 1.0;
+            let p = ctx.eval(&zp, Some(&ch), &[], 1e-13).unwrap();
+            let f = c(0.0, 2.0 * PI * ch.a[j]).exp();
+            prop_assert!(close(p.full(), f * v.full(), p.full_error() + v.full_error()));
+            // theta[a;b](z + tau e_j) = exp(-pi i tau_jj - 2 pi i (z_j + b_j)) theta[a;b](z)
+            let zq: Vec<C64> = (0..g).map(|i| z[i] + t[(i, j)]).collect();
+            let q = ctx.eval(&zq, Some(&ch), &[], 1e-13).unwrap();
+            let f = (c(0.0, -PI) * t[(j, j)] - c(0.0, 2.0 * PI) * (z[j] + ch.b[j])).exp();
+            prop_assert!(close(q.full(), f * v.full(), q.full_error() + f.norm() * v.full_error()),
+                "{} vs {}", q.full(), f * v.full());
+            // parity: theta[a;b](-z) = (-1)^(4 a.b) theta[a;b](z)
+            let mz: Vec<C64> = z.iter().map(|x| -x).collect();
+            let m = ctx.eval(&mz, Some(&ch), &[], 1e-13).unwrap();
+            let sign = if ch.is_even().unwrap() { 1.0 } else { -1.0 };
+            prop_assert!(close(m.full(), sign * v.full(), m.full_error() + v.full_error()));
+        }
+    }
+}
