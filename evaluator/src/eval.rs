@@ -76,10 +76,15 @@ pub(crate) struct Evaluator<'a> {
     pub(crate) checked: &'a Checked,
     src: &'a str,
     env: HashMap<String, Valued>,
-    out: Evaluation,
+    pub(crate) out: Evaluation,
 }
 
 impl Evaluator<'_> {
+    /// The span of a name at its definition.
+    pub(crate) fn curve_span(&self, name: &str) -> Option<Span> {
+        self.checked.symbols.iter().find(|s| s.name == name).map(|s| s.span)
+    }
+
     fn text(&self, s: Span) -> &str {
         &self.src[s.range()]
     }
@@ -102,8 +107,11 @@ impl Evaluator<'_> {
                 let Some(eq) = self.checked.curves.get(&i) else {
                     return;
                 };
-                let v =
-                    Valued::exact(Value::Curve(Rc::new(CurveValue { name: name.name.clone(), equation: eq.clone() })));
+                let v = Valued::exact(Value::Curve(Rc::new(CurveValue {
+                    name: name.name.clone(),
+                    equation: eq.clone(),
+                    facts: Default::default(),
+                })));
                 self.define(name, v);
             }
             StmtKind::Let { name, value } | StmtKind::Wave { name, value } => match self.expr(value) {
@@ -202,6 +210,9 @@ impl Evaluator<'_> {
         };
         let decision = compare(op, &l, &r, tol, lhs.span.join(rhs.span))?;
         let mut detail = format!("{} = {}", self.text(lhs.span), show(&l));
+        if let Some(why) = &l.reason {
+            detail.push_str(&format!(" ({why})"));
+        }
         if !is_literal(rhs) {
             detail.push_str(&format!(", {} = {}", self.text(rhs.span), show(&r)));
         } else if matches!(op, BinOp::Eq | BinOp::Ne) {
@@ -378,6 +389,12 @@ impl Evaluator<'_> {
                 Ok(Valued { value: Value::Bool(r.holds()), error_bound: 0.0, reason: Some(r.reason()) })
             }
             "theta" => self.theta_call(span, args),
+            "smooth" | "genus" | "singular_points" => {
+                let Value::Curve(c) = first(self)?.value else {
+                    return Err(fail(Code::WrongKind, arg_span, format!("`{}` needs a curve", func.name)));
+                };
+                self.curve_fact(&func.name, &c, arg_span)
+            }
             name => Err(fail(Code::NotSupported, span, not_supported(name))),
         }
     }
@@ -386,9 +403,7 @@ impl Evaluator<'_> {
 /// What is missing for a function kelp does not compute yet.
 fn not_supported(name: &str) -> String {
     let why = match name {
-        "genus" | "smooth" | "singular_points" | "j_invariant" => {
-            "exact curve algebra (singular points, delta invariants, genus) is not built yet"
-        }
+        "j_invariant" => "the exact j-invariant of genus-1 curves is not built yet",
         "tau" => "Riemann matrices of curves are not computed yet",
         _ => "KP waves are not computed yet",
     };

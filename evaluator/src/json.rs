@@ -90,6 +90,18 @@ pub fn value_json(v: &Value) -> (&'static str, J) {
             "point",
             json!({"coordinates": entries_json(coords, any_complex(coords.iter())), "projective": projective}),
         ),
+        Value::SingularPoint(p) => (
+            "point",
+            json!({
+                "coordinates": entries_json(&p.coords, false),
+                "projective": true,
+                "multiplicity": p.multiplicity,
+                "kind": p.kind,
+                "delta": p.delta,
+                "branches": p.branches,
+                "milnor": p.milnor,
+            }),
+        ),
     }
 }
 

@@ -2,6 +2,8 @@
 //! tolerances and error bounds, and (as the mathematics lands) exact curve algebra,
 //! theta functions, Riemann matrices, KP waves and outputs.
 
+pub mod algebra;
+mod curve_fn;
 pub mod eval;
 pub mod json;
 pub mod linalg;

@@ -9,6 +9,19 @@ use std::rc::Rc;
 pub struct CurveValue {
     pub name: String,
     pub equation: CurveEquation,
+    /// Singular points and what follows from them, computed once on first use.
+    pub facts: std::cell::OnceCell<Rc<crate::algebra::curve::CurveFacts>>,
+}
+
+/// A singular point with its local invariants.
+#[derive(Clone, Debug)]
+pub struct SingularInfo {
+    pub coords: Vec<Num>,
+    pub multiplicity: u32,
+    pub kind: String,
+    pub delta: u64,
+    pub branches: u32,
+    pub milnor: u64,
 }
 
 #[derive(Clone, Debug)]
@@ -21,6 +34,7 @@ pub enum Value {
     List(Vec<Value>),
     Curve(Rc<CurveValue>),
     Point { coords: Vec<Num>, projective: bool },
+    SingularPoint(Rc<SingularInfo>),
 }
 
 /// A value with the bound on its numerical error (0 for exact values and literals).
@@ -51,7 +65,7 @@ impl Value {
             Value::Matrix(_) => "matrix",
             Value::List(_) => "list",
             Value::Curve(_) => "curve",
-            Value::Point { .. } => "point",
+            Value::Point { .. } | Value::SingularPoint(_) => "point",
         }
     }
 }
@@ -76,6 +90,14 @@ impl fmt::Display for Value {
                 let sep = if *projective { " : " } else { ", " };
                 write!(f, "({})", coords.iter().map(|n| n.to_string()).collect::<Vec<_>>().join(sep))
             }
+            Value::SingularPoint(p) => write!(
+                f,
+                "({}) {}, multiplicity {}, delta {}",
+                p.coords.iter().map(|n| n.to_string()).collect::<Vec<_>>().join(" : "),
+                p.kind,
+                p.multiplicity,
+                p.delta
+            ),
         }
     }
 }

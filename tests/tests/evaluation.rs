@@ -71,7 +71,7 @@ fn matrix_arithmetic() {
 
 #[test]
 fn mathematics_not_built_yet_gives_no_value() {
-    let r = run("curve c: y^2 = x^3 + x^2\nlet g = genus(c)\nexpect g == 0\nexpect degree(c) == 3\n");
+    let r = run("curve c: y^2 = x^3 - x\nlet j = j_invariant(c)\nexpect j == 1728\nexpect degree(c) == 3\n");
     assert_eq!(r.codes, vec![Code::NotSupported, Code::DependsOnFailed]);
     assert_eq!(r.passed, vec![None, Some(true)]);
 }
@@ -114,4 +114,43 @@ fn theta_refuses_bad_matrices_at_the_argument() {
     let d = &e.diagnostics[0];
     assert_eq!(&src[d.span.range()], "[[1i, 2i], [2i, 1i]]");
     assert!(d.message.contains("-1.0"), "{}", d.message);
+}
+
+#[test]
+fn curve_claims_end_to_end() {
+    // The sketch's curves: reef is genus 2 (hyperelliptic, deg f = 5), kink is a nodal
+    // cubic of genus 0 with one singular point (Fulton, Algebraic Curves, ch. 3 and 8).
+    let r = run("curve reef: y^2 = x^5 - 5*x^3 + 4*x\n\
+         curve kink: y^2 = x^3 + x^2\n\
+         curve nodal: x^4 + y^4 + y^2*z^2 - x^2*z^2\n\
+         expect genus(reef) == 2\n\
+         expect genus(kink) == 0\n\
+         expect count(singular_points(kink)) == 1\n\
+         expect genus(nodal) == 3\n");
+    assert_eq!(r.passed[..3], [Some(true); 3], "{:?}", r.messages);
+    // A failed genus claim names the singular point, its type and delta.
+    assert_eq!(r.passed[3], Some(false));
+    let msg = r.messages.iter().find(|m| m.contains("genus(nodal)")).unwrap();
+    assert!(
+        msg.contains("genus(nodal) = 2") && msg.contains("(0 : 0 : 1): A1 (node)") && msg.contains("delta 1"),
+        "{msg}"
+    );
+}
+
+#[test]
+fn curves_without_a_genus_say_why() {
+    let src = "curve pair: y^2 = x^4\ncurve twice: (x^2 + y^2 - 1)^2\nlet a = genus(pair)\nlet b = genus(twice)\nlet c = singular_points(twice)\n";
+    let c = check(src);
+    let e = evaluate(&c, src, &Mode::Check);
+    let errors: Vec<(Code, String)> =
+        e.diagnostics.iter().filter(|d| d.is_error()).map(|d| (d.code, d.message.clone())).collect();
+    assert_eq!(errors.len(), 3, "{errors:?}");
+    assert!(errors.iter().all(|(c, _)| *c == Code::EvalFailed));
+    assert!(errors[0].1.contains("reducible"));
+    assert!(errors[1].1.contains("repeated factor") && errors[2].1.contains("not at finitely many points"));
+    // Each curve gets an information diagnostic listing its singular points.
+    assert!(e
+        .diagnostics
+        .iter()
+        .any(|d| d.code == Code::ValueInfo && d.message.contains("`pair` has 2 singular point")));
 }

@@ -1,0 +1,381 @@
+//! Singular points of the projective closure of a plane curve over Q, exactly, and the
+//! facts built on them: smoothness, delta invariants, genus, and what is decided about
+//! irreducibility.
+//!
+//! Method. A shear x -> x + c y (c the least integer >= 0 with F(c, 1, 0) != 0) makes
+//! F monic in y up to a constant, so (0 : 1 : 0) is off the curve and resultants in y
+//! have no spurious roots. The x-coordinates of the affine singular points are then
+//! the common roots of Res_y(f, f_x + t f_y) for all t, i.e. the gcd over t = 0..=d
+//! (common practice: a common root y of f and f_x + t f_y for infinitely many t is a
+//! common root of f, f_x, f_y). Points at infinity (1 : y : 0) are common roots of the
+//! three partials there: a univariate gcd. Rational points are found exactly; points
+//! with irrational coordinates are counted and given by a defining polynomial with
+//! numerical approximations.
+
+use super::bivar::{resultant_v, P2};
+use super::local::{self, Local};
+use super::roots;
+use super::upoly::UPoly;
+use kelp_lang::poly::Poly;
+use num_bigint::BigInt;
+use num_complex::Complex64 as C64;
+use num_rational::BigRational;
+use num_traits::{One, Zero};
+
+#[derive(Clone, Debug)]
+pub struct SingularPoint {
+    /// Projective coordinates in the user's variables, scaled so the last non-zero one is 1.
+    pub coords: [BigRational; 3],
+    pub local: Result<Local, String>,
+    /// Whether a tangent line at the point is a component of the curve.
+    pub line_component: bool,
+}
+
+/// Singular points with irrational coordinates, not yet analysed exactly.
+#[derive(Clone, Debug)]
+pub struct IrrationalPoints {
+    /// Where they lie: "x-coordinate a root of ..." or "at infinity, ...".
+    pub description: String,
+    /// At least this many points.
+    pub count: usize,
+    /// Approximate x-coordinates (affine) or y/x slopes (at infinity) with inclusion radii.
+    pub approx: Vec<(C64, f64)>,
+}
+
+#[derive(Clone, Debug)]
+pub struct CurveFacts {
+    pub degree: u32,
+    /// The equation has a repeated factor: singular along a whole component.
+    pub non_reduced: bool,
+    pub rational: Vec<SingularPoint>,
+    pub irrational: Vec<IrrationalPoints>,
+}
+
+fn q(n: i64) -> BigRational {
+    BigRational::from_integer(BigInt::from(n))
+}
+
+fn deriv(p: &Poly, var: usize) -> Poly {
+    let mut out = Poly::zero();
+    for (m, c) in &p.terms {
+        if m[var] > 0 {
+            let mut m2 = *m;
+            m2[var] -= 1;
+            out = out.add(&monomial(m2, c * q(m[var] as i64)));
+        }
+    }
+    out
+}
+
+fn monomial(m: [u32; 3], c: BigRational) -> Poly {
+    let mut p = Poly::constant(c);
+    for (i, &e) in m.iter().enumerate() {
+        if e > 0 {
+            p = p.mul(&Poly::var(i).pow(e));
+        }
+    }
+    p
+}
+
+/// F(x + c y, y, z).
+fn shear(f: &Poly, c: i64) -> Poly {
+    if c == 0 {
+        return f.clone();
+    }
+    let xs = Poly::var(0).add(&Poly::var(1).scale(&q(c)));
+    let mut out = Poly::zero();
+    for (m, coef) in &f.terms {
+        let t = xs.pow(m[0]).mul(&Poly::var(1).pow(m[1])).mul(&Poly::var(2).pow(m[2]));
+        out = out.add(&t.scale(coef));
+    }
+    out
+}
+
+/// F(1, y, 0) as a polynomial in y.
+fn at_infinity(f: &Poly) -> UPoly {
+    let d = f.degree().unwrap_or(0) as usize;
+    let mut c = vec![BigRational::zero(); d + 1];
+    for (m, v) in &f.terms {
+        if m[2] == 0 {
+            c[m[1] as usize] += v;
+        }
+    }
+    UPoly::new(c)
+}
+
+pub fn homogeneous(poly: &Poly, projective: bool) -> Poly {
+    if projective {
+        poly.clone()
+    } else {
+        poly.homogenize()
+    }
+}
+
+pub fn analyse(poly: &Poly, projective: bool) -> CurveFacts {
+    let f = homogeneous(poly, projective);
+    let d = f.degree().unwrap_or(0);
+    // The least c >= 0 with F(c, 1, 0) != 0 (F(x, y, 0) is not identically zero unless z
+    // divides F, which the non-reduced / reducible checks below see as well).
+    let fx1 = {
+        // F(x, 1, 0) as a polynomial in x.
+        let mut c = vec![BigRational::zero(); d as usize + 1];
+        for (m, v) in &f.terms {
+            if m[2] == 0 {
+                c[m[0] as usize] += v;
+            }
+        }
+        UPoly::new(c)
+    };
+    let c = (0..=d as i64 + 1).find(|&c| !fx1.eval(&q(c)).is_zero()).unwrap_or(0);
+    let g = shear(&f, c);
+    let back = |x: &BigRational, y: &BigRational, z: &BigRational| -> [BigRational; 3] {
+        let mut p = [x + y * q(c), y.clone(), z.clone()];
+        // Scale so that the last non-zero coordinate is 1.
+        if let Some(k) = (0..3).rev().find(|&k| !p[k].is_zero()) {
+            let s = p[k].clone();
+            for v in p.iter_mut() {
+                *v = &*v / &s;
+            }
+        }
+        p
+    };
+    let mut facts = CurveFacts { degree: d, non_reduced: false, rational: vec![], irrational: vec![] };
+
+    // Affine chart z = 1 of the sheared curve.
+    let fa = P2::chart(&g, 2);
+    let (fu, fv) = (fa.deriv(0), fa.deriv(1));
+    let mut h = UPoly::zero();
+    for t in 0..=d as i64 {
+        h = h.gcd(&resultant_v(&fa, &fu.scale_add(&fv, &q(t))));
+        if h.degree() == Some(0) {
+            break;
+        }
+    }
+    if h.is_zero() {
+        facts.non_reduced = true;
+        return facts;
+    }
+    let h = h.squarefree();
+    let xs = h.rational_roots();
+    for x0 in &xs {
+        let gy = fa.at_u(x0).gcd(&fu.at_u(x0)).gcd(&fv.at_u(x0));
+        let ys = gy.rational_roots();
+        for y0 in &ys {
+            let at = fa.shift(x0, y0);
+            let local = local::analyse(&at);
+            let line_component = has_line_component(&at);
+            facts.rational.push(SingularPoint { coords: back(x0, y0, &q(1)), local, line_component });
+        }
+        let extra = gy.squarefree().degree().unwrap_or(0).saturating_sub(ys.len());
+        if extra > 0 {
+            facts.irrational.push(IrrationalPoints {
+                description: format!("x = {} (sheared coordinates), y a root of {}", x0, show(&gy, "y")),
+                count: extra,
+                approx: vec![],
+            });
+        }
+    }
+    let mut rest = h.clone();
+    for x0 in &xs {
+        rest = rest.divrem(&UPoly::new(vec![-x0.clone(), BigRational::one()])).0;
+    }
+    if rest.degree().unwrap_or(0) > 0 {
+        let approx = roots::complex_roots(&rest).into_iter().map(|z| (z, roots::inclusion_radius(&rest, z))).collect();
+        let what = if c == 0 { "x" } else { "x - c*y" };
+        facts.irrational.push(IrrationalPoints {
+            description: format!(
+                "affine points whose {what} is a root of {}{}",
+                show(&rest, "x"),
+                if c == 0 { String::new() } else { format!(" (c = {c})") }
+            ),
+            count: rest.degree().unwrap(),
+            approx,
+        });
+    }
+
+    // Points at infinity (1 : y : 0) of the sheared curve.
+    let gi = at_infinity(&deriv(&g, 0)).gcd(&at_infinity(&deriv(&g, 1))).gcd(&at_infinity(&deriv(&g, 2)));
+    if gi.is_zero() {
+        facts.non_reduced = true;
+        return facts;
+    }
+    if gi.degree().unwrap_or(0) > 0 {
+        let chart = P2::chart(&g, 0); // x = 1: variables (y, z)
+        let ys = gi.rational_roots();
+        for y0 in &ys {
+            let at = chart.shift(y0, &q(0));
+            let local = local::analyse(&at);
+            let line_component = has_line_component(&at);
+            facts.rational.push(SingularPoint { coords: back(&q(1), y0, &q(0)), local, line_component });
+        }
+        let sf = gi.squarefree();
+        let extra = sf.degree().unwrap_or(0).saturating_sub(ys.len());
+        if extra > 0 {
+            let mut rest = sf.clone();
+            for y0 in &ys {
+                rest = rest.divrem(&UPoly::new(vec![-y0.clone(), BigRational::one()])).0;
+            }
+            let approx =
+                roots::complex_roots(&rest).into_iter().map(|z| (z, roots::inclusion_radius(&rest, z))).collect();
+            facts.irrational.push(IrrationalPoints {
+                description: format!("points at infinity (1 : y : 0) with y a root of {}", show(&rest, "y")),
+                count: extra,
+                approx,
+            });
+        }
+    }
+    facts
+}
+
+/// Whether the curve (moved so the point is the origin) contains one of its tangent
+/// lines there, over C: along v = t u the terms of total degree k sum to c_k(t) s^k, so
+/// a tangent slope t (a root of the square-free tangent cone S) spans a component
+/// exactly when S and every c_k have the common root t; u = 0 is checked directly.
+fn has_line_component(p: &P2) -> bool {
+    let (t, drop) = p.tangent_cone();
+    if drop > 0 && p.terms.keys().all(|&(i, _)| i > 0) {
+        return true;
+    }
+    let d = p.total_degree().unwrap_or(0) as usize;
+    let mut c = vec![vec![BigRational::zero(); d + 1]; d + 1];
+    for (&(i, j), v) in &p.terms {
+        c[(i + j) as usize][j as usize] += v;
+    }
+    let mut g = t.squarefree();
+    for ck in c {
+        if g.degree().unwrap_or(0) == 0 {
+            return false;
+        }
+        g = g.gcd(&UPoly::new(ck));
+    }
+    g.degree().unwrap_or(0) > 0
+}
+
+/// Why a curve has no genus (yet).
+#[derive(Clone, Debug, PartialEq)]
+pub enum NoGenus {
+    NonReduced(String),
+    Reducible(String),
+    Unsupported(String),
+}
+
+impl NoGenus {
+    pub fn message(&self) -> &str {
+        match self {
+            NoGenus::NonReduced(m) | NoGenus::Reducible(m) | NoGenus::Unsupported(m) => m,
+        }
+    }
+}
+
+impl CurveFacts {
+    pub fn smooth(&self) -> bool {
+        !self.non_reduced && self.rational.is_empty() && self.irrational.is_empty()
+    }
+    pub fn singular_count(&self) -> usize {
+        self.rational.len() + self.irrational.iter().map(|i| i.count).sum::<usize>()
+    }
+    /// The geometric genus, or why it is not given.
+    pub fn genus(&self) -> Result<i64, NoGenus> {
+        let d = self.degree as i64;
+        let arithmetic = (d - 1) * (d - 2) / 2;
+        if self.non_reduced {
+            return Err(NoGenus::NonReduced(
+                "the equation has a repeated factor, so the curve is singular along a whole component".into(),
+            ));
+        }
+        if !self.irrational.is_empty() {
+            return Err(NoGenus::Unsupported(format!(
+                "the curve has singular points with irrational coordinates ({}); their delta invariants need \
+                 arithmetic in number fields, which is not supported yet",
+                self.irrational.iter().map(|i| i.description.clone()).collect::<Vec<_>>().join("; ")
+            )));
+        }
+        let mut delta = 0i64;
+        for p in &self.rational {
+            match &p.local {
+                Ok(l) => delta += l.delta as i64,
+                Err(why) => return Err(NoGenus::Unsupported(format!("at {}: {why}", show_point(&p.coords)))),
+            }
+        }
+        let g = arithmetic - delta;
+        if self.rational.is_empty() {
+            // A reducible curve is singular where its components meet (Bezout).
+            return Ok(g);
+        }
+        if g < 0 {
+            return Err(NoGenus::Reducible(format!(
+                "the curve is reducible over C: (d-1)(d-2)/2 - sum of delta = {arithmetic} - {delta} = {g} < 0, \
+                 and an irreducible curve has genus >= 0"
+            )));
+        }
+        // If F = G H with deg G = a, deg H = d - a, the common points of G and H carry
+        // intersection number a (d - a) in all (Bezout), and at each point at most its
+        // `split_bound`. A split whose a (d - a) exceeds the sum of the bounds is impossible.
+        if let Some(p) = self.rational.iter().find(|p| p.line_component) {
+            return Err(NoGenus::Reducible(format!(
+                "the curve is reducible: it contains a line (one of its tangent lines) through its singular point {}",
+                show_point(&p.coords)
+            )));
+        }
+        let bound: u64 = self.rational.iter().filter_map(|p| p.local.as_ref().ok()).map(Local::split_bound).sum();
+        let open: Vec<i64> = (1..=d / 2).filter(|&a| (a * (d - a)) as u64 <= bound).collect();
+        // A line component meets the rest in singular points along one of their tangent
+        // lines, and every tangent line at every singular point was tested above.
+        let open: Vec<i64> = open.into_iter().filter(|&a| a != 1).collect();
+        if open.is_empty() {
+            return Ok(g);
+        }
+        Err(NoGenus::Unsupported(format!(
+            "irreducibility is not decided yet: the singular points leave room for a component of degree {} \
+             (factorisation over C is not built yet)",
+            open.iter().map(|a| a.to_string()).collect::<Vec<_>>().join(" or ")
+        )))
+    }
+    /// Lines for an information diagnostic and hover: each singular point with type and delta.
+    pub fn summary(&self) -> Vec<String> {
+        let mut out = Vec::new();
+        if self.non_reduced {
+            out.push("the equation has a repeated factor (singular along a component)".into());
+            return out;
+        }
+        for p in &self.rational {
+            out.push(match &p.local {
+                Ok(l) => format!(
+                    "{}: {}, multiplicity {}, delta {}, {} branch{}, Milnor number {}",
+                    show_point(&p.coords),
+                    l.kind,
+                    l.multiplicity,
+                    l.delta,
+                    l.branches,
+                    if l.branches == 1 { "" } else { "es" },
+                    l.milnor
+                ),
+                Err(why) => format!("{}: not classified ({why})", show_point(&p.coords)),
+            });
+        }
+        for i in &self.irrational {
+            out.push(format!("{} singular point(s) with irrational coordinates: {}", i.count, i.description));
+        }
+        out
+    }
+}
+
+pub fn show_point(c: &[BigRational; 3]) -> String {
+    format!("({} : {} : {})", c[0], c[1], c[2])
+}
+
+fn show(p: &UPoly, var: &str) -> String {
+    let mut terms = Vec::new();
+    for (i, c) in p.primitive().0.iter().enumerate().rev() {
+        if c.is_zero() {
+            continue;
+        }
+        let coef = if c.is_one() && i > 0 { String::new() } else { format!("{c}*") };
+        terms.push(match i {
+            0 => format!("{c}"),
+            1 => format!("{coef}{var}"),
+            _ => format!("{coef}{var}^{i}"),
+        });
+    }
+    terms.join(" + ").replace("+ -", "- ").replace("*", "")
+}

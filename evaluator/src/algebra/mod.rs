@@ -1,0 +1,10 @@
+//! Exact algebra over Q for plane curves: univariate polynomials, numerical roots with
+//! inclusion radii, bivariate polynomials, singular points and their local invariants.
+
+pub mod bivar;
+pub mod curve;
+pub mod local;
+pub mod roots;
+#[cfg(test)]
+mod tests;
+pub mod upoly;

@@ -1,0 +1,95 @@
+//! Curve-level checks against classical facts (Fulton, *Algebraic Curves*; Greuel,
+//! Lossen, Shustin; values of the examples worked by hand, or common practice).
+
+use super::curve::{analyse, CurveFacts};
+
+fn facts(eq: &str) -> CurveFacts {
+    let src = format!("curve c: {eq}\n");
+    let checked = kelp_lang::check(&src);
+    assert!(!checked.has_errors(), "{:?}", checked.diagnostics);
+    let e = checked.curves.values().next().unwrap();
+    analyse(&e.poly, e.projective)
+}
+
+fn kinds(f: &CurveFacts) -> Vec<String> {
+    f.rational.iter().map(|p| p.local.as_ref().map(|l| l.kind.clone()).unwrap_or_else(|e| e.clone())).collect()
+}
+
+#[test]
+fn smooth_curves_have_the_plane_genus() {
+    // Fermat curves x^d + y^d + z^d are smooth of genus (d-1)(d-2)/2; the Klein quartic
+    // is smooth of genus 3 (common practice, no source).
+    for d in 2..=8 {
+        let f = facts(&format!("x^{d} + y^{d} + z^{d}"));
+        assert!(f.smooth(), "Fermat {d}: {:?}", f.summary());
+        assert_eq!(f.genus(), Ok(((d - 1) * (d - 2) / 2) as i64));
+    }
+    let klein = facts("x^3*y + y^3*z + z^3*x");
+    assert!(klein.smooth());
+    assert_eq!(klein.genus(), Ok(3));
+    let elliptic = facts("y^2 = x^3 - x + 1");
+    assert!(elliptic.smooth());
+    assert_eq!(elliptic.genus(), Ok(1));
+}
+
+#[test]
+fn classical_singular_curves() {
+    // Nodal and cuspidal cubics: one singular point, genus 0 (Fulton, ch. 3 and 8).
+    let node = facts("y^2 = x^3 + x^2");
+    assert_eq!(kinds(&node), vec!["A1 (node)"]);
+    assert_eq!(node.genus(), Ok(0));
+    let cusp = facts("y^2 = x^3");
+    assert_eq!(kinds(&cusp), vec!["A2 (cusp)"]);
+    assert_eq!(cusp.genus(), Ok(0));
+    // y^2 = x^5 - 5x^3 + 4x: smooth in the affine plane, an E8 point (delta 4) at
+    // (0 : 1 : 0); genus 6 - 4 = 2 (the hyperelliptic genus floor((5-1)/2)).
+    let reef = facts("y^2 = x^5 - 5*x^3 + 4*x");
+    assert_eq!(reef.rational.len(), 1);
+    assert_eq!(reef.rational[0].coords.iter().map(|c| c.to_string()).collect::<Vec<_>>(), ["0", "1", "0"]);
+    assert_eq!(kinds(&reef), vec!["E8"]);
+    assert_eq!(reef.genus(), Ok(2));
+    // y^2 = f(x) with deg f = 6: a tacnode-like A5 at infinity (delta 3), genus 2.
+    let sextic = facts("y^2 = x^6 + 3*x + 1");
+    assert_eq!(sextic.genus(), Ok(2));
+    // The ordinary triple point (x^2 + y^2)^2 + 3x^2 y - y^3: D4, delta 3, genus 0.
+    let trip = facts("(x^2 + y^2)^2 + 3*x^2*y - y^3");
+    assert_eq!(kinds(&trip), vec!["D4 (ordinary triple point)"]);
+    assert_eq!(trip.genus(), Ok(0));
+    // A quartic with three nodes (x^2 y^2 + y^2 z^2 + z^2 x^2, the "standard quadratic
+    // transform" of a conic): genus 0.
+    let three = facts("x^2*y^2 + y^2*z^2 + z^2*x^2");
+    assert_eq!(kinds(&three), vec!["A1 (node)"; 3]);
+    assert_eq!(three.genus(), Ok(0));
+}
+
+#[test]
+fn reducible_and_non_reduced_curves_have_no_genus() {
+    // y^2 = x^4 is (y - x^2)(y + x^2): a tacnode at the origin and another at infinity.
+    let tac = facts("y^2 = x^4");
+    assert!(kinds(&tac).contains(&"A3 (tacnode)".to_string()));
+    assert!(tac.genus().unwrap_err().message().contains("reducible"));
+    // Three lines, and a line times a cubic with three nodes on the line.
+    assert!(facts("x*y*(x + y - 1)").genus().unwrap_err().message().contains("reducible"));
+    // y (y^2 z - x^3 + x z^2): three nodes on the line y = 0, and (d-1)(d-2)/2 - 3 = 0,
+    // so only the line test can tell.
+    let line_cubic = facts("y*(y^2*z - x^3 + x*z^2)");
+    assert!(line_cubic.genus().unwrap_err().message().contains("the curve is reducible"), "{:?}", line_cubic.genus());
+    // x^2 + y^2: two conjugate lines over C.
+    assert!(facts("x^2 + y^2").genus().unwrap_err().message().contains("reducible"));
+    // A repeated factor.
+    let double = facts("(x^2 + y^2 - 1)^2");
+    assert!(double.non_reduced);
+    assert!(double.genus().unwrap_err().message().contains("repeated factor"));
+}
+
+#[test]
+fn irrational_singular_points_are_counted_not_guessed() {
+    // Nodes at x = +-sqrt(2): y^2 = (x^2 - 2)^2 (x + 3), plus the singular point at
+    // infinity of every y^2 = f(x) with deg f >= 4: three singular points, no genus yet.
+    let f = facts("y^2 = (x^2 - 2)^2*(x + 3)");
+    assert!(!f.smooth());
+    assert_eq!(f.singular_count(), 3);
+    assert!(f.genus().unwrap_err().message().contains("irrational"));
+    let approx = &f.irrational[0].approx;
+    assert!(approx.iter().all(|(z, r)| ((z.re.abs() - 2f64.sqrt()).abs() < 1e-10) && *r < 1e-10));
+}

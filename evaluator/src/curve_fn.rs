@@ -1,0 +1,107 @@
+//! `smooth`, `genus` and `singular_points`: the exact curve algebra behind the built-ins,
+//! computed once per curve, with an information diagnostic at the curve's name listing
+//! its singular points.
+
+use crate::algebra::curve::{analyse, CurveFacts, NoGenus};
+use crate::eval::{fail, Evaluator, Fail};
+use crate::num::Num;
+use crate::value::{CurveValue, SingularInfo, Value, Valued};
+use kelp_lang::{Code, Diagnostic, Span};
+use std::rc::Rc;
+
+/// Curves above this degree are refused by the exact algebra for now (resultant sizes
+/// grow like d^4).
+pub const MAX_ALGEBRA_DEGREE: u32 = 16;
+
+impl Evaluator<'_> {
+    fn facts(&mut self, c: &CurveValue, span: Span) -> Result<Rc<CurveFacts>, Fail> {
+        if let Some(f) = c.facts.get() {
+            return Ok(f.clone());
+        }
+        if c.equation.degree > MAX_ALGEBRA_DEGREE {
+            return Err(fail(
+                Code::BudgetExceeded,
+                span,
+                format!(
+                    "`{}` has degree {}; singular points and genus are computed up to degree {MAX_ALGEBRA_DEGREE} for now",
+                    c.name, c.equation.degree
+                ),
+            ));
+        }
+        let f = Rc::new(analyse(&c.equation.poly, c.equation.projective));
+        let _ = c.facts.set(f.clone());
+        if let Some(def) = self.curve_span(&c.name) {
+            let lines = f.summary();
+            let msg = if lines.is_empty() {
+                format!("`{}` is smooth (degree {})", c.name, f.degree)
+            } else {
+                format!("`{}` has {} singular point(s)", c.name, f.singular_count())
+            };
+            let mut d = Diagnostic::info(Code::ValueInfo, def, msg);
+            d.notes = lines;
+            self.out.diagnostics.push(d);
+        }
+        Ok(f)
+    }
+
+    pub(crate) fn curve_fact(&mut self, what: &str, c: &CurveValue, span: Span) -> Result<Valued, Fail> {
+        let f = self.facts(c, span)?;
+        let summary = if f.smooth() { "smooth".to_string() } else { f.summary().join("; ") };
+        match what {
+            "smooth" => {
+                if f.non_reduced {
+                    return Ok(Valued { value: Value::Bool(false), error_bound: 0.0, reason: Some(summary) });
+                }
+                Ok(Valued { value: Value::Bool(f.smooth()), error_bound: 0.0, reason: Some(summary) })
+            }
+            "genus" => match f.genus() {
+                Ok(g) => Ok(Valued { value: Value::Num(Num::int(g)), error_bound: 0.0, reason: Some(summary) }),
+                Err(NoGenus::NonReduced(m)) | Err(NoGenus::Reducible(m)) => {
+                    Err(fail(Code::EvalFailed, span, format!("`{}` has no genus: {m}", c.name)))
+                }
+                Err(NoGenus::Unsupported(m)) => {
+                    Err(fail(Code::NotSupported, span, format!("the genus of `{}` is not supported yet: {m}", c.name)))
+                }
+            },
+            _ => {
+                if f.non_reduced {
+                    return Err(fail(
+                        Code::EvalFailed,
+                        span,
+                        format!("`{}` has a repeated factor: it is singular along a whole component, not at finitely many points", c.name),
+                    ));
+                }
+                if !f.irrational.is_empty() {
+                    return Err(fail(
+                        Code::NotSupported,
+                        span,
+                        format!(
+                            "`{}` has singular points with irrational coordinates; listing them exactly is not supported yet ({})",
+                            c.name,
+                            summary
+                        ),
+                    ));
+                }
+                let mut out = Vec::new();
+                for p in &f.rational {
+                    let l = p.local.as_ref().map_err(|why| {
+                        fail(
+                            Code::NotSupported,
+                            span,
+                            format!("a singular point of `{}` cannot be classified yet: {why}", c.name),
+                        )
+                    })?;
+                    out.push(Value::SingularPoint(Rc::new(SingularInfo {
+                        coords: p.coords.iter().map(|q| Num::Exact(q.clone())).collect(),
+                        multiplicity: l.multiplicity,
+                        kind: l.kind.clone(),
+                        delta: l.delta,
+                        branches: l.branches,
+                        milnor: l.milnor,
+                    })));
+                }
+                Ok(Valued { value: Value::List(out), error_bound: 0.0, reason: Some(summary) })
+            }
+        }
+    }
+}
