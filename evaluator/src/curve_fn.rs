@@ -11,7 +11,7 @@ use std::rc::Rc;
 
 /// Curves above this degree are refused by the exact algebra for now (resultant sizes
 /// grow like d^4).
-pub const MAX_ALGEBRA_DEGREE: u32 = 16;
+pub const MAX_ALGEBRA_DEGREE: u32 = 12;
 
 impl Evaluator<'_> {
     fn facts(&mut self, c: &CurveValue, span: Span) -> Result<Rc<CurveFacts>, Fail> {

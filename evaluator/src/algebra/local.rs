@@ -188,7 +188,7 @@ mod tests {
         for k in 1..=9u32 {
             let l = analyse(&p2(&[((0, 2), 1), ((k + 1, 0), -1)])).unwrap();
             assert_eq!(l.milnor, k as u64, "A{k}");
-            assert_eq!(l.delta, ((k + 1) / 2) as u64, "A{k}");
+            assert_eq!(l.delta, k.div_ceil(2) as u64, "A{k}");
             assert_eq!(l.branches, if k % 2 == 1 { 2 } else { 1 });
         }
         for k in 4..=9u32 {
