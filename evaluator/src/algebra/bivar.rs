@@ -139,27 +139,55 @@ impl P2 {
     }
 }
 
-/// Res_v(f, g) as a polynomial in u, for f whose coefficient of its top power of v is a
-/// non-zero constant (so the formal resultant is lc(f)^k * Res(f(u0), g(u0)) where g
-/// drops k degrees at u0), by evaluation at 0, 1, ... and Newton interpolation.
+/// Res_v(f, g) as a polynomial in u, up to a non-zero constant factor, for f whose
+/// coefficient of its top power of v is a non-zero constant (so the formal resultant is
+/// lc(f)^k Res(f(u0), g(u0)) where g drops k degrees at u0). Both are scaled to integer
+/// coefficients, evaluated at u = 0, 1, ..., and the values interpolated: all in
+/// integers, with the sub-resultant algorithm at each point.
 pub fn resultant_v(f: &P2, g: &P2) -> UPoly {
-    let n = g.deg_v().unwrap_or(0);
-    let m = f.deg_v().unwrap_or(0);
-    let lc = f.terms.iter().find(|(&(_, j), _)| j == m).map(|(_, c)| c.clone()).unwrap_or_else(BigRational::one);
+    let (f, g) = (f.integral(), g.integral());
+    let n = g.deg_v().unwrap_or(0) as usize;
+    let m = f.deg_v().unwrap_or(0) as usize;
+    let lc =
+        f.terms.iter().find(|(&(_, j), _)| j as usize == m).map(|(_, c)| c.to_integer()).unwrap_or_else(BigInt::one);
     let bound = f.total_degree().unwrap_or(0) * g.total_degree().unwrap_or(0);
-    let xs: Vec<BigRational> = (0..=bound as i64).map(q).collect();
-    let ys: Vec<BigRational> = xs
-        .iter()
+    let ys: Vec<BigInt> = (0..=bound as i64)
         .map(|x| {
-            let (fu, gu) = (f.at_u(x), g.at_u(x));
-            if gu.is_zero() {
-                return BigRational::zero();
+            let (fu, mut gu) = (f.at_u_int(x), g.at_u_int(x));
+            super::zpoly::trim(&mut gu);
+            if gu.is_empty() {
+                return BigInt::zero();
             }
-            let k = n - gu.degree().unwrap() as u32;
-            fu.resultant(&gu) * num_traits::pow(lc.clone(), k as usize)
+            let k = n - (gu.len() - 1);
+            super::zpoly::resultant(&fu, &gu) * num_traits::pow(lc.clone(), k)
         })
         .collect();
-    interpolate(&xs, &ys)
+    UPoly::new(super::zpoly::interpolate_integers(&ys))
+}
+
+impl P2 {
+    /// Scaled by a positive rational to integer coefficients with content 1.
+    pub fn integral(&self) -> P2 {
+        let lcm = self.terms.values().fold(BigInt::one(), |l, c| num_integer::Integer::lcm(&l, c.denom()));
+        let ints: Vec<BigInt> =
+            self.terms.values().map(|c| (c * BigRational::from_integer(lcm.clone())).to_integer()).collect();
+        let g = ints.iter().fold(BigInt::zero(), |g, c| num_integer::Integer::gcd(&g, c));
+        let mut p = P2::default();
+        for ((m, _), c) in self.terms.iter().zip(ints) {
+            p.add_term(*m, BigRational::from_integer(c / &g));
+        }
+        p
+    }
+    /// p(u0, v) for integer u0 and integer coefficients, as integers (lowest first).
+    fn at_u_int(&self, u0: i64) -> Vec<BigInt> {
+        let d = self.deg_v().unwrap_or(0) as usize;
+        let mut c = vec![BigInt::zero(); d + 1];
+        let u = BigInt::from(u0);
+        for (&(i, j), v) in &self.terms {
+            c[j as usize] += v.to_integer() * num_traits::pow(u.clone(), i as usize);
+        }
+        c
+    }
 }
 
 /// The polynomial of least degree through the points (Newton's divided differences).
@@ -207,4 +235,64 @@ mod tests {
         assert_eq!((t, drop), (UPoly::from_ints(&[0, 0, 1]), 0));
         assert_eq!(f.blow_up(2, &q(0)).order(), Some(1));
     }
+}
+
+/// The local intersection multiplicity at the origin of two curves p = 0 and q = 0
+/// (`None` when they share a component through it), by Fulton's algorithm (*Algebraic
+/// Curves*, section 3.3): I(P, yH) = I(P, y) + I(P, H), and replacing q by a
+/// combination with p that lowers deg q(x, 0) keeps I.
+pub fn intersection_at_origin(p: &P2, q: &P2) -> Option<u64> {
+    let (mut f, mut g) = (p.clone(), q.clone());
+    let mut total = 0u64;
+    for _ in 0..10_000 {
+        let at0 = |h: &P2| h.terms.get(&(0, 0)).is_some_and(|c| !c.is_zero());
+        if at0(&f) || at0(&g) {
+            return Some(total);
+        }
+        let (fx, gx) = (on_x_axis(&f), on_x_axis(&g));
+        match (fx.degree(), gx.degree()) {
+            (None, None) => return None,
+            (None, Some(_)) | (Some(_), None) => {
+                // The one vanishing on y = 0 is y H: I(y, other) + I(H, other).
+                let (yh, other, ox) = if fx.is_zero() { (&f, &g, &gx) } else { (&g, &f, &fx) };
+                total += ox.0.iter().position(|c| !c.is_zero()).unwrap_or(0) as u64;
+                let mut h = P2::default();
+                for (&(i, j), c) in &yh.terms {
+                    h.add_term((i, j - 1), c.clone());
+                }
+                let other = other.clone();
+                f = h.integral();
+                g = other;
+            }
+            (Some(r), Some(s)) => {
+                let (lo, hi, r, s) = if r <= s { (f.clone(), g.clone(), r, s) } else { (g.clone(), f.clone(), s, r) };
+                let (lx, hx) = (on_x_axis(&lo), on_x_axis(&hi));
+                // hi' = lc(lo) hi - lc(hi) x^(s - r) lo has a lower degree on y = 0.
+                let mut shifted = P2::default();
+                for (&(i, j), c) in &lo.terms {
+                    shifted.add_term((i + (s - r) as u32, j), c * hx.lead());
+                }
+                let mut next = P2::default();
+                for (&m, c) in &hi.terms {
+                    next.add_term(m, c * lx.lead());
+                }
+                // Scaling by a non-zero constant keeps I; it keeps the coefficients small.
+                let next = next.scale_add(&shifted, &-num_rational::BigRational::one());
+                f = lo;
+                g = if next.is_zero() { next } else { next.integral() };
+            }
+        }
+    }
+    None
+}
+
+fn on_x_axis(p: &P2) -> UPoly {
+    let d = p.terms.keys().filter(|&&(_, j)| j == 0).map(|&(i, _)| i).max().unwrap_or(0) as usize;
+    let mut c = vec![BigRational::zero(); d + 1];
+    for (&(i, j), v) in &p.terms {
+        if j == 0 {
+            c[i as usize] = v.clone();
+        }
+    }
+    UPoly::new(c)
 }

@@ -15,6 +15,7 @@
 use super::bivar::{resultant_v, P2};
 use super::local::{self, Local};
 use super::roots;
+use super::tower;
 use super::upoly::UPoly;
 use kelp_lang::poly::Poly;
 use num_bigint::BigInt;
@@ -91,6 +92,20 @@ fn shear(f: &Poly, c: i64) -> Poly {
     out
 }
 
+/// p(u, v) as a polynomial in v with coefficients in Q[u].
+fn as_rpoly(p: &P2) -> tower::RPoly {
+    let d = p.deg_v().unwrap_or(0) as usize;
+    let mut out: Vec<Vec<BigRational>> = vec![Vec::new(); d + 1];
+    for (&(i, j), c) in &p.terms {
+        let row = &mut out[j as usize];
+        if row.len() <= i as usize {
+            row.resize(i as usize + 1, BigRational::zero());
+        }
+        row[i as usize] = c.clone();
+    }
+    out.into_iter().map(UPoly::new).collect()
+}
+
 /// F(1, y, 0) as a polynomial in y.
 fn at_infinity(f: &Poly) -> UPoly {
     let d = f.degree().unwrap_or(0) as usize;
@@ -146,7 +161,13 @@ pub fn analyse(poly: &Poly, projective: bool) -> CurveFacts {
     let (fu, fv) = (fa.deriv(0), fa.deriv(1));
     let mut h = UPoly::zero();
     for t in 0..=d as i64 {
-        h = h.gcd(&resultant_v(&fa, &fu.scale_add(&fv, &q(t))));
+        let r = resultant_v(&fa, &fu.scale_add(&fv, &q(t)));
+        // Most curves are smooth: a certificate mod p settles coprimality at once.
+        if !h.is_zero() && h.coprime_mod_p(&r) == Some(true) {
+            h = UPoly::one();
+            break;
+        }
+        h = h.gcd(&r);
         if h.degree() == Some(0) {
             break;
         }
@@ -180,17 +201,30 @@ pub fn analyse(poly: &Poly, projective: bool) -> CurveFacts {
         rest = rest.divrem(&UPoly::new(vec![-x0.clone(), BigRational::one()])).0;
     }
     if rest.degree().unwrap_or(0) > 0 {
-        let approx = roots::complex_roots(&rest).into_iter().map(|z| (z, roots::inclusion_radius(&rest, z))).collect();
-        let what = if c == 0 { "x" } else { "x - c*y" };
-        facts.irrational.push(IrrationalPoints {
-            description: format!(
-                "affine points whose {what} is a root of {}{}",
-                show(&rest, "x"),
-                if c == 0 { String::new() } else { format!(" (c = {c})") }
-            ),
-            count: rest.degree().unwrap(),
-            approx,
-        });
+        // Above the irrational roots of `rest`: how many distinct common roots y of f,
+        // f_x, f_y, exactly, by gcds over Q[x]/(rest) that split it where needed.
+        let (rf, ru, rv) = (as_rpoly(&fa), as_rpoly(&fu), as_rpoly(&fv));
+        let what = if c == 0 { "x".to_string() } else { format!("x - {c}*y") };
+        for (h1, g1) in tower::gcd(&rest, &rf, &ru) {
+            for (h2, g2) in tower::gcd(&h1, &g1, &rv) {
+                for (h3, k) in tower::squarefree_degrees(&h2, &g2) {
+                    if k == 0 {
+                        continue;
+                    }
+                    let approx =
+                        roots::complex_roots(&h3).into_iter().map(|z| (z, roots::inclusion_radius(&h3, z))).collect();
+                    facts.irrational.push(IrrationalPoints {
+                        description: format!(
+                            "{} affine point(s) above each root of {} (x = {what})",
+                            k,
+                            show(&h3, "x"),
+                        ),
+                        count: k * h3.degree().unwrap_or(0),
+                        approx,
+                    });
+                }
+            }
+        }
     }
 
     // Points at infinity (1 : y : 0) of the sheared curve.

@@ -45,6 +45,16 @@ pub fn analyse(p: &P2) -> Result<Local, Unsupported> {
     let (delta, branches) = walk(p, 0, &mut tree)?;
     let tangents = directions(p)?;
     let milnor = (2 * delta + 1).saturating_sub(branches as u64);
+    // Cross-check with the Milnor number computed directly as the local intersection
+    // multiplicity of the partial derivatives (Fulton's algorithm).
+    match super::bivar::intersection_at_origin(&p.deriv(0), &p.deriv(1)) {
+        Some(mu) if mu == milnor => {}
+        Some(mu) => return Err(format!(
+            "internal cross-check failed: Milnor's formula gives mu = {milnor} (delta {delta}, {branches} branches) \
+                 but the intersection of the partial derivatives gives {mu}; not reporting either"
+        )),
+        None => return Err("the partial derivatives share a component: the point is not isolated".into()),
+    }
     let kind = name(m, &tangents, milnor);
     let (t, drop) = p.tangent_cone();
     let mut rational_tangents: Vec<Option<num_rational::BigRational>> =

@@ -7,4 +7,6 @@ pub mod local;
 pub mod roots;
 #[cfg(test)]
 mod tests;
+pub mod tower;
 pub mod upoly;
+pub mod zpoly;

@@ -93,3 +93,62 @@ fn irrational_singular_points_are_counted_not_guessed() {
     let approx = &f.irrational[0].approx;
     assert!(approx.iter().all(|(z, r)| ((z.re.abs() - 2f64.sqrt()).abs() < 1e-10) && *r < 1e-10));
 }
+
+mod invariance {
+    use super::*;
+    use kelp_lang::poly::Poly;
+    use num_bigint::BigInt;
+    use num_rational::BigRational;
+    use proptest::prelude::*;
+
+    /// F(M (x, y, z)^T) for an integer matrix M.
+    fn transform(f: &Poly, m: &[i64; 9]) -> Poly {
+        let lin = |r: usize| {
+            (0..3).fold(Poly::zero(), |acc, k| {
+                acc.add(&Poly::var(k).scale(&BigRational::from_integer(BigInt::from(m[3 * r + k]))))
+            })
+        };
+        let (lx, ly, lz) = (lin(0), lin(1), lin(2));
+        let mut out = Poly::zero();
+        for (e, c) in &f.terms {
+            out = out.add(&lx.pow(e[0]).mul(&ly.pow(e[1])).mul(&lz.pow(e[2])).scale(c));
+        }
+        out
+    }
+
+    fn det(m: &[i64; 9]) -> i64 {
+        m[0] * (m[4] * m[8] - m[5] * m[7]) - m[1] * (m[3] * m[8] - m[5] * m[6]) + m[2] * (m[3] * m[7] - m[4] * m[6])
+    }
+
+    const CURVES: [&str; 6] = [
+        "y^2*z - x^3 - x^2*z",
+        "y^2*z - x^3",
+        "y^2*z^3 - x^5 + 5*x^3*z^2 - 4*x*z^4",
+        "(x^2 + y^2)^2 + 3*x^2*y*z - y^3*z",
+        "x^2*y^2 + y^2*z^2 + z^2*x^2",
+        "x^3*y + y^3*z + z^3*x",
+    ];
+
+    proptest! {
+        #![proptest_config(ProptestConfig::with_cases(24))]
+
+        /// Genus, smoothness and the singularity types are projective invariants
+        /// (common practice, no source): a random invertible change of coordinates over Q
+        /// must not change them.
+        #[test]
+        fn genus_and_types_survive_projective_changes(which in 0usize..6, m in prop::array::uniform9(-3i64..=3)) {
+            prop_assume!(det(&m) != 0);
+            let src = format!("curve c: {}\n", CURVES[which]);
+            let checked = kelp_lang::check(&src);
+            let e = checked.curves.values().next().unwrap();
+            let before = analyse(&e.poly, true);
+            let after = analyse(&transform(&e.poly, &m), true);
+            prop_assert_eq!(before.genus(), after.genus());
+            prop_assert_eq!(before.smooth(), after.smooth());
+            let (mut a, mut b) = (kinds(&before), kinds(&after));
+            a.sort();
+            b.sort();
+            prop_assert_eq!(a, b);
+        }
+    }
+}

@@ -238,3 +238,106 @@ mod tests {
         assert!(UPoly::from_ints(&[-2, 0, 1]).rational_roots().is_empty());
     }
 }
+
+/// Arithmetic modulo the prime 2^61 - 1, for gcd certificates.
+pub mod modp {
+    pub const P: u64 = (1 << 61) - 1;
+
+    pub fn mul(a: u64, b: u64) -> u64 {
+        let r = (a as u128) * (b as u128);
+        let lo = (r as u64) & P;
+        let hi = (r >> 61) as u64;
+        let s = lo + hi;
+        if s >= P {
+            s - P
+        } else {
+            s
+        }
+    }
+    pub fn add(a: u64, b: u64) -> u64 {
+        let s = a + b;
+        if s >= P {
+            s - P
+        } else {
+            s
+        }
+    }
+    pub fn sub(a: u64, b: u64) -> u64 {
+        if a >= b {
+            a - b
+        } else {
+            a + P - b
+        }
+    }
+    pub fn pow(mut a: u64, mut e: u64) -> u64 {
+        let mut r = 1;
+        while e > 0 {
+            if e & 1 == 1 {
+                r = mul(r, a);
+            }
+            a = mul(a, a);
+            e >>= 1;
+        }
+        r
+    }
+    pub fn inv(a: u64) -> u64 {
+        pow(a, P - 2)
+    }
+    /// The residue of a rational whose denominator is prime to P (`None` otherwise).
+    pub fn of(q: &num_rational::BigRational) -> Option<u64> {
+        use num_traits::ToPrimitive;
+        let p = num_bigint::BigInt::from(P);
+        let n = ((q.numer() % &p) + &p) % &p;
+        let d = ((q.denom() % &p) + &p) % &p;
+        let d = d.to_u64()?;
+        if d == 0 {
+            return None;
+        }
+        Some(mul(n.to_u64()?, inv(d)))
+    }
+    /// Degree of gcd(a, b) over Z/P (coefficients lowest first, trailing zeros allowed).
+    pub fn gcd_degree(a: &[u64], b: &[u64]) -> Option<usize> {
+        let trim = |v: &mut Vec<u64>| {
+            while v.last() == Some(&0) {
+                v.pop();
+            }
+        };
+        let (mut a, mut b) = (a.to_vec(), b.to_vec());
+        trim(&mut a);
+        trim(&mut b);
+        while !b.is_empty() {
+            // a mod b
+            let lb = inv(*b.last().unwrap());
+            while a.len() >= b.len() {
+                let c = mul(*a.last().unwrap(), lb);
+                let shift = a.len() - b.len();
+                for (i, &bv) in b.iter().enumerate() {
+                    a[shift + i] = sub(a[shift + i], mul(c, bv));
+                }
+                a.pop();
+                trim(&mut a);
+            }
+            std::mem::swap(&mut a, &mut b);
+        }
+        a.len().checked_sub(1)
+    }
+}
+
+impl UPoly {
+    /// `Some(true)` when gcd(self, o) = 1 is certified modulo 2^61 - 1: a common factor
+    /// over Q, made primitive over Z, has a leading coefficient dividing both leading
+    /// coefficients, so when P divides neither it survives reduction mod P. `None` when
+    /// the certificate does not apply (then compute the gcd exactly).
+    pub fn coprime_mod_p(&self, o: &UPoly) -> Option<bool> {
+        let (a, b) = (self.primitive(), o.primitive());
+        let am: Vec<u64> = a.0.iter().map(modp::of).collect::<Option<_>>()?;
+        let bm: Vec<u64> = b.0.iter().map(modp::of).collect::<Option<_>>()?;
+        if am.last() == Some(&0) || bm.last() == Some(&0) {
+            return None;
+        }
+        match modp::gcd_degree(&am, &bm)? {
+            0 => Some(true),
+            _ => None,
+        }
+    }
+}
