@@ -206,37 +206,6 @@ pub fn interpolate(xs: &[BigRational], ys: &[BigRational]) -> UPoly {
     p
 }
 
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn resultant_eliminates_y() {
-        // Res_y(y^2 - x, y - x) = x^2 - x (y = x on the parabola: x = 0 or 1; common
-        // practice, no source).
-        let mut f = P2::default();
-        f.add_term((0, 2), q(1));
-        f.add_term((1, 0), q(-1));
-        let mut g = P2::default();
-        g.add_term((0, 1), q(1));
-        g.add_term((1, 0), q(-1));
-        assert_eq!(resultant_v(&f, &g), UPoly::from_ints(&[0, -1, 1]));
-    }
-
-    #[test]
-    fn blow_up_of_the_cusp_is_smooth() {
-        // y^2 - x^3 at the origin: multiplicity 2, tangent cone y^2 (t^2), and the blow-up
-        // w^2 - u is smooth (common practice, no source).
-        let mut f = P2::default();
-        f.add_term((0, 2), q(1));
-        f.add_term((3, 0), q(-1));
-        assert_eq!(f.order(), Some(2));
-        let (t, drop) = f.tangent_cone();
-        assert_eq!((t, drop), (UPoly::from_ints(&[0, 0, 1]), 0));
-        assert_eq!(f.blow_up(2, &q(0)).order(), Some(1));
-    }
-}
-
 /// The local intersection multiplicity at the origin of two curves p = 0 and q = 0
 /// (`None` when they share a component through it), by Fulton's algorithm (*Algebraic
 /// Curves*, section 3.3): I(P, yH) = I(P, y) + I(P, H), and replacing q by a
@@ -295,4 +264,35 @@ fn on_x_axis(p: &P2) -> UPoly {
         }
     }
     UPoly::new(c)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn resultant_eliminates_y() {
+        // Res_y(y^2 - x, y - x) = x^2 - x (y = x on the parabola: x = 0 or 1; common
+        // practice, no source).
+        let mut f = P2::default();
+        f.add_term((0, 2), q(1));
+        f.add_term((1, 0), q(-1));
+        let mut g = P2::default();
+        g.add_term((0, 1), q(1));
+        g.add_term((1, 0), q(-1));
+        assert_eq!(resultant_v(&f, &g), UPoly::from_ints(&[0, -1, 1]));
+    }
+
+    #[test]
+    fn blow_up_of_the_cusp_is_smooth() {
+        // y^2 - x^3 at the origin: multiplicity 2, tangent cone y^2 (t^2), and the blow-up
+        // w^2 - u is smooth (common practice, no source).
+        let mut f = P2::default();
+        f.add_term((0, 2), q(1));
+        f.add_term((3, 0), q(-1));
+        assert_eq!(f.order(), Some(2));
+        let (t, drop) = f.tangent_cone();
+        assert_eq!((t, drop), (UPoly::from_ints(&[0, 0, 1]), 0));
+        assert_eq!(f.blow_up(2, &q(0)).order(), Some(1));
+    }
 }

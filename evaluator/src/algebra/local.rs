@@ -49,10 +49,12 @@ pub fn analyse(p: &P2) -> Result<Local, Unsupported> {
     // multiplicity of the partial derivatives (Fulton's algorithm).
     match super::bivar::intersection_at_origin(&p.deriv(0), &p.deriv(1)) {
         Some(mu) if mu == milnor => {}
-        Some(mu) => return Err(format!(
+        Some(mu) => {
+            return Err(format!(
             "internal cross-check failed: Milnor's formula gives mu = {milnor} (delta {delta}, {branches} branches) \
                  but the intersection of the partial derivatives gives {mu}; not reporting either"
-        )),
+        ))
+        }
         None => return Err("the partial derivatives share a component: the point is not isolated".into()),
     }
     let kind = name(m, &tangents, milnor);
@@ -157,7 +159,7 @@ fn show(p: &UPoly) -> String {
 /// The usual names: A_k, D_k, E6, E7, E8 (simple singularities, classified by the
 /// multiplicity, the tangent directions and mu), ordinary m-fold points, otherwise a
 /// plain description.
-fn name(m: u32, tangents: &[u32], mu: u64) -> String {
+pub(crate) fn name(m: u32, tangents: &[u32], mu: u64) -> String {
     match (m, tangents) {
         (0 | 1, _) => "smooth point".into(),
         (2, _) => match mu {

@@ -4,6 +4,7 @@
 pub mod bivar;
 pub mod curve;
 pub mod local;
+pub mod local_ext;
 pub mod roots;
 #[cfg(test)]
 mod tests;

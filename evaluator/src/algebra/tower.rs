@@ -11,7 +11,7 @@ use num_traits::One;
 pub type RPoly = Vec<UPoly>;
 
 /// Extended Euclid: (g, s) with s a = g mod h, g = gcd(a, h) monic.
-fn xgcd_mod(a: &UPoly, h: &UPoly) -> (UPoly, UPoly) {
+pub fn xgcd_mod(a: &UPoly, h: &UPoly) -> (UPoly, UPoly) {
     let (mut r0, mut r1) = (h.clone(), a.rem(h));
     let (mut s0, mut s1) = (UPoly::zero(), UPoly::one());
     while !r1.is_zero() {
@@ -104,19 +104,44 @@ pub fn derivative(p: &RPoly) -> RPoly {
     p.iter().enumerate().skip(1).map(|(i, c)| c.scale(&BigRational::from_integer((i as i64).into()))).collect()
 }
 
-/// Degree in y of the square-free part of `g` over each piece of a further splitting.
-pub fn squarefree_degrees(h: &UPoly, g: &RPoly) -> Vec<(UPoly, usize)> {
+/// The square-free part of `g` over each piece of a further splitting of h.
+pub fn squarefree(h: &UPoly, g: &RPoly) -> Vec<(UPoly, RPoly)> {
     if g.len() <= 1 {
-        return vec![(h.clone(), 0)];
+        return vec![(h.clone(), g.clone())];
     }
     gcd(h, g, &derivative(g))
         .into_iter()
-        .map(|(hi, gi)| {
-            let dg = reduce(g, &hi).len().saturating_sub(1);
-            let dgi = gi.len().saturating_sub(1);
-            (hi, dg - dgi.min(dg))
+        .map(|(hi, d)| {
+            let gi = reduce(g, &hi);
+            let q = divide(&hi, &gi, &d);
+            (hi, q)
         })
         .collect()
+}
+
+/// p / d in R[y] for d with an invertible leading coefficient that divides p.
+pub fn divide(h: &UPoly, p: &RPoly, d: &RPoly) -> RPoly {
+    if d.len() <= 1 {
+        if let Some(c) = d.first() {
+            let inv = xgcd_mod(c, h).1;
+            return p.iter().map(|v| v.mul(&inv).rem(h)).collect();
+        }
+        return p.clone();
+    }
+    let mut rem = p.clone();
+    let dd = d.len() - 1;
+    let lead_inv = xgcd_mod(d.last().unwrap(), h).1;
+    let mut q = vec![UPoly::zero(); rem.len().saturating_sub(dd)];
+    while rem.len() > dd {
+        let c = rem.last().unwrap().mul(&lead_inv).rem(h);
+        let shift = rem.len() - 1 - dd;
+        for (i, dc) in d.iter().enumerate() {
+            rem[shift + i] = rem[shift + i].sub(&c.mul(dc)).rem(h);
+        }
+        q[shift] = c;
+        rem.pop();
+    }
+    q
 }
 
 pub fn is_zero(p: &RPoly) -> bool {
