@@ -58,6 +58,10 @@ enum Command {
 
 pub fn main() -> i32 {
     let args: Vec<String> = std::env::args().collect();
+    // The language server owns stdin/stdout itself: no lock may be held on them.
+    if args.get(1).map(String::as_str) == Some("lsp") && args.len() == 2 {
+        return crate::server::run();
+    }
     let color = std::io::stderr().is_terminal();
     run(&args, &mut std::io::stdout().lock(), &mut std::io::stderr().lock(), color)
 }
@@ -78,10 +82,7 @@ pub fn run(args: &[String], out: &mut dyn Write, err: &mut dyn Write, color: boo
         Command::Check { files, format, verbose } => io.evaluate_files(&files, format, verbose, Mode::Check),
         Command::Run { file, format, verbose } => io.evaluate_files(&[file], format, verbose, Mode::Run),
         Command::Fmt { files, check } => io.fmt(&files, check),
-        Command::Lsp => {
-            Err("kelp lsp: the language server is not built yet; `kelp check --format json` gives the same diagnostics"
-                .to_string())
-        }
+        Command::Lsp => Ok(crate::server::run()),
     };
     match status {
         Ok(code) => code,

@@ -1,4 +1,5 @@
-//! The `kelp` front end: command line now, language server next. Only this crate will
-//! know LSP types; `kelp-lang` and `kelp-evaluator` stay protocol-free.
+//! The `kelp` front end: the command line and the language server. Only this crate
+//! knows LSP types; `kelp-lang` and `kelp-evaluator` stay protocol-free.
 
 pub mod cli;
+pub mod server;

@@ -1,0 +1,372 @@
+//! `kelp lsp`: the language server over stdio (tower-lsp-server on tokio).
+//!
+//! Scheduling. Every document edit is applied synchronously, under one lock and before
+//! any `.await`, so edits are never reordered; a change whose version is not newer than
+//! the document's is dropped. Syntax and checker diagnostics are published at once.
+//! Evaluation (curve algebra, theta values) runs on a blocking worker after a pause in
+//! typing, bounded in time, and is dropped if the document moved on meanwhile; its
+//! results are cached by the exact text, so reopening or undoing costs nothing.
+
+mod analysis;
+mod convert;
+
+use analysis::{evaluate_text, EvalSummary};
+use kelp_lang::span::LineIndex;
+use kelp_lang::{check, Span};
+use std::collections::HashMap;
+use std::sync::{Arc, Mutex};
+use std::time::Duration;
+use tower_lsp_server::jsonrpc::Result;
+use tower_lsp_server::ls_types::*;
+use tower_lsp_server::{Client, LanguageServer, LspService, Server};
+
+/// Pause after the last keystroke before evaluating.
+const DEBOUNCE: Duration = Duration::from_millis(150);
+/// Longest an evaluation may run before it is abandoned (its diagnostics say so).
+const EVAL_BUDGET: Duration = Duration::from_secs(30);
+
+struct Doc {
+    text: String,
+    version: i32,
+    index: LineIndex,
+    /// Bumped on every edit; a finished evaluation publishes only if it is still current.
+    generation: u64,
+    eval: Option<Arc<EvalSummary>>,
+}
+
+#[derive(Default)]
+struct State {
+    docs: HashMap<Uri, Doc>,
+    /// Evaluations by exact text.
+    cache: HashMap<String, Arc<EvalSummary>>,
+}
+
+pub struct Backend {
+    client: Client,
+    state: Arc<Mutex<State>>,
+}
+
+/// Serves on stdin/stdout until the client exits.
+pub fn run() -> i32 {
+    let rt = match tokio::runtime::Builder::new_multi_thread().worker_threads(2).enable_all().build() {
+        Ok(rt) => rt,
+        Err(e) => {
+            eprintln!("kelp lsp: cannot start the runtime: {e}");
+            return 2;
+        }
+    };
+    rt.block_on(async {
+        let (service, socket) =
+            LspService::new(|client| Backend { client, state: Arc::new(Mutex::new(State::default())) });
+        Server::new(tokio::io::stdin(), tokio::io::stdout(), socket).serve(service).await;
+    });
+    0
+}
+
+impl Backend {
+    fn lock(&self) -> std::sync::MutexGuard<'_, State> {
+        // A panic elsewhere must not wedge the server: the state is still consistent.
+        self.state.lock().unwrap_or_else(|e| e.into_inner())
+    }
+
+    /// Publishes the checker's diagnostics now (with the last evaluation's, if it is for
+    /// this very text) and schedules an evaluation.
+    async fn refresh(&self, uri: Uri) {
+        let (diags, version, generation, text) = {
+            let mut st = self.lock();
+            let cached = st.docs.get(&uri).and_then(|d| st.cache.get(&d.text).cloned());
+            let Some(doc) = st.docs.get_mut(&uri) else { return };
+            doc.eval = cached.clone();
+            let checked = check(&doc.text);
+            let mut diags: Vec<Diagnostic> =
+                checked.diagnostics.iter().map(|d| convert::diagnostic(&doc.index, &uri, d)).collect();
+            if let Some(ev) = &cached {
+                diags.extend(ev.diagnostics.iter().map(|d| convert::diagnostic(&doc.index, &uri, d)));
+            }
+            (diags, doc.version, doc.generation, if cached.is_some() { None } else { Some(doc.text.clone()) })
+        };
+        self.client.publish_diagnostics(uri.clone(), diags, Some(version)).await;
+        if let Some(text) = text {
+            self.schedule(uri, generation, text);
+        }
+    }
+
+    fn schedule(&self, uri: Uri, generation: u64, text: String) {
+        let state = self.state.clone();
+        let client = self.client.clone();
+        tokio::spawn(async move {
+            tokio::time::sleep(DEBOUNCE).await;
+            let current = |st: &State| st.docs.get(&uri).is_some_and(|d| d.generation == generation);
+            if !current(&state.lock().unwrap_or_else(|e| e.into_inner())) {
+                return;
+            }
+            let worker_text = text.clone();
+            let job = tokio::task::spawn_blocking(move || evaluate_text(&worker_text));
+            let summary = match tokio::time::timeout(EVAL_BUDGET, job).await {
+                Ok(Ok(s)) => s,
+                _ => EvalSummary {
+                    diagnostics: vec![kelp_lang::Diagnostic::warning(
+                        kelp_lang::Code::BudgetExceeded,
+                        Span::new(0, 0),
+                        format!("evaluation took longer than {} s and was abandoned", EVAL_BUDGET.as_secs()),
+                    )],
+                    values: vec![],
+                },
+            };
+            let summary = Arc::new(summary);
+            let publish = {
+                let mut st = state.lock().unwrap_or_else(|e| e.into_inner());
+                if st.cache.len() > 64 {
+                    st.cache.clear();
+                }
+                st.cache.insert(text, summary.clone());
+                if !current(&st) {
+                    return;
+                }
+                let doc = st.docs.get_mut(&uri).unwrap();
+                doc.eval = Some(summary.clone());
+                let checked = check(&doc.text);
+                let mut diags: Vec<Diagnostic> =
+                    checked.diagnostics.iter().map(|d| convert::diagnostic(&doc.index, &uri, d)).collect();
+                diags.extend(summary.diagnostics.iter().map(|d| convert::diagnostic(&doc.index, &uri, d)));
+                (diags, doc.version)
+            };
+            client.publish_diagnostics(uri, publish.0, Some(publish.1)).await;
+        });
+    }
+
+    /// The name (definition or use) under a position, with its symbol index.
+    fn symbol_at(&self, uri: &Uri, pos: Position) -> Option<(usize, Span, String)> {
+        let st = self.lock();
+        let doc = st.docs.get(uri)?;
+        let at = convert::offset(&doc.index, pos);
+        let checked = check(&doc.text);
+        let hit = |s: Span| s.start <= at && at <= s.end;
+        if let Some((i, s)) = checked.symbols.iter().enumerate().find(|(_, s)| hit(s.span)) {
+            return Some((i, s.span, s.name.clone()));
+        }
+        let r = checked.references.iter().find(|r| hit(r.span))?;
+        Some((r.symbol, r.span, r.name.clone()))
+    }
+}
+
+/// The identifier around a byte offset.
+fn word_at(text: &str, at: usize) -> Option<(usize, usize)> {
+    let is_id = |c: u8| c.is_ascii_alphanumeric() || c == b'_';
+    let b = text.as_bytes();
+    let at = at.min(b.len());
+    let mut s = at;
+    while s > 0 && is_id(b[s - 1]) {
+        s -= 1;
+    }
+    let mut e = at;
+    while e < b.len() && is_id(b[e]) {
+        e += 1;
+    }
+    (s < e).then_some((s, e))
+}
+
+impl LanguageServer for Backend {
+    async fn initialize(&self, _: InitializeParams) -> Result<InitializeResult> {
+        Ok(InitializeResult {
+            server_info: Some(ServerInfo { name: "kelp".into(), version: Some(env!("CARGO_PKG_VERSION").into()) }),
+            capabilities: ServerCapabilities {
+                position_encoding: Some(PositionEncodingKind::UTF16),
+                text_document_sync: Some(TextDocumentSyncCapability::Kind(TextDocumentSyncKind::INCREMENTAL)),
+                hover_provider: Some(HoverProviderCapability::Simple(true)),
+                definition_provider: Some(OneOf::Left(true)),
+                references_provider: Some(OneOf::Left(true)),
+                rename_provider: Some(OneOf::Left(true)),
+                document_symbol_provider: Some(OneOf::Left(true)),
+                document_formatting_provider: Some(OneOf::Left(true)),
+                ..ServerCapabilities::default()
+            },
+            ..Default::default()
+        })
+    }
+
+    async fn shutdown(&self) -> Result<()> {
+        Ok(())
+    }
+
+    async fn did_open(&self, params: DidOpenTextDocumentParams) {
+        let d = params.text_document;
+        {
+            let mut st = self.lock();
+            let index = LineIndex::new(&d.text);
+            st.docs.insert(d.uri.clone(), Doc { text: d.text, version: d.version, index, generation: 0, eval: None });
+        }
+        self.refresh(d.uri).await;
+    }
+
+    async fn did_change(&self, params: DidChangeTextDocumentParams) {
+        let uri = params.text_document.uri;
+        {
+            // All edits applied here, synchronously, in order.
+            let mut st = self.lock();
+            let Some(doc) = st.docs.get_mut(&uri) else { return };
+            if params.text_document.version <= doc.version {
+                return; // stale or repeated notification
+            }
+            for change in params.content_changes {
+                match change.range {
+                    None => doc.text = change.text,
+                    Some(r) => {
+                        let (a, b) = (convert::offset(&doc.index, r.start), convert::offset(&doc.index, r.end));
+                        let (a, b) = (a.min(doc.text.len()), b.min(doc.text.len()).max(a.min(doc.text.len())));
+                        if doc.text.is_char_boundary(a) && doc.text.is_char_boundary(b) {
+                            doc.text.replace_range(a..b, &change.text);
+                        }
+                    }
+                }
+                doc.index = LineIndex::new(&doc.text);
+            }
+            doc.version = params.text_document.version;
+            doc.generation += 1;
+            doc.eval = None;
+        }
+        self.refresh(uri).await;
+    }
+
+    async fn did_close(&self, params: DidCloseTextDocumentParams) {
+        let uri = params.text_document.uri;
+        self.lock().docs.remove(&uri);
+        self.client.publish_diagnostics(uri, vec![], None).await;
+    }
+
+    async fn hover(&self, params: HoverParams) -> Result<Option<Hover>> {
+        let uri = params.text_document_position_params.text_document.uri;
+        let pos = params.text_document_position_params.position;
+        let sym = self.symbol_at(&uri, pos);
+        let st = self.lock();
+        let Some(doc) = st.docs.get(&uri) else { return Ok(None) };
+        let at = convert::offset(&doc.index, pos);
+        let (text, span) = if let Some((_, span, name)) = sym {
+            let shown = doc.eval.as_ref().and_then(|e| e.values.iter().find(|v| v.name == name).cloned());
+            let body = match shown {
+                Some(v) if v.error_bound > 0.0 => {
+                    format!("**{}** ({})\n\n```\n{}\n```\nerror bound {:.1e}", v.name, v.kind, v.display, v.error_bound)
+                }
+                Some(v) => format!("**{}** ({})\n\n```\n{}\n```", v.name, v.kind, v.display),
+                None if doc.eval.is_none() => format!("**{name}**: being computed"),
+                None => format!("**{name}**: no value (see its diagnostics)"),
+            };
+            (body, span)
+        } else if let Some((s, e)) = word_at(&doc.text, at) {
+            let word = &doc.text[s..e];
+            let Some(b) = kelp_lang::builtins::BUILTINS.iter().find(|b| b.name == word) else { return Ok(None) };
+            (format!("```\n{}\n```\n{}", b.signature, b.summary), Span::new(s, e))
+        } else {
+            return Ok(None);
+        };
+        // Curve facts: the information diagnostic at the curve's name lists them.
+        let mut text = text;
+        if let Some(ev) = &doc.eval {
+            for d in ev.diagnostics.iter().filter(|d| d.code == kelp_lang::Code::ValueInfo && d.span == span) {
+                text.push_str(&format!("\n\n{}", d.message));
+                for n in &d.notes {
+                    text.push_str(&format!("\n- {n}"));
+                }
+            }
+        }
+        Ok(Some(Hover {
+            contents: HoverContents::Markup(MarkupContent { kind: MarkupKind::Markdown, value: text }),
+            range: Some(convert::range(&doc.index, span)),
+        }))
+    }
+
+    async fn goto_definition(&self, params: GotoDefinitionParams) -> Result<Option<GotoDefinitionResponse>> {
+        let uri = params.text_document_position_params.text_document.uri;
+        let Some((sym, _, _)) = self.symbol_at(&uri, params.text_document_position_params.position) else {
+            return Ok(None);
+        };
+        let st = self.lock();
+        let Some(doc) = st.docs.get(&uri) else { return Ok(None) };
+        let checked = check(&doc.text);
+        let s = &checked.symbols[sym];
+        Ok(Some(GotoDefinitionResponse::Scalar(Location {
+            uri: uri.clone(),
+            range: convert::range(&doc.index, s.span),
+        })))
+    }
+
+    async fn references(&self, params: ReferenceParams) -> Result<Option<Vec<Location>>> {
+        let uri = params.text_document_position.text_document.uri;
+        let Some((sym, _, _)) = self.symbol_at(&uri, params.text_document_position.position) else {
+            return Ok(None);
+        };
+        let st = self.lock();
+        let Some(doc) = st.docs.get(&uri) else { return Ok(None) };
+        let checked = check(&doc.text);
+        let mut spans: Vec<Span> = checked.references.iter().filter(|r| r.symbol == sym).map(|r| r.span).collect();
+        if params.context.include_declaration {
+            spans.insert(0, checked.symbols[sym].span);
+        }
+        Ok(Some(
+            spans.into_iter().map(|s| Location { uri: uri.clone(), range: convert::range(&doc.index, s) }).collect(),
+        ))
+    }
+
+    async fn rename(&self, params: RenameParams) -> Result<Option<WorkspaceEdit>> {
+        let uri = params.text_document_position.text_document.uri;
+        let new = params.new_name;
+        let valid = new.chars().next().is_some_and(|c| c.is_ascii_alphabetic() || c == '_')
+            && new.chars().all(|c| c.is_ascii_alphanumeric() || c == '_');
+        if !valid {
+            return Err(tower_lsp_server::jsonrpc::Error::invalid_params(format!("`{new}` is not a valid name")));
+        }
+        let Some((sym, _, _)) = self.symbol_at(&uri, params.text_document_position.position) else {
+            return Ok(None);
+        };
+        let st = self.lock();
+        let Some(doc) = st.docs.get(&uri) else { return Ok(None) };
+        let checked = check(&doc.text);
+        let mut spans = vec![checked.symbols[sym].span];
+        spans.extend(checked.references.iter().filter(|r| r.symbol == sym).map(|r| r.span));
+        let edits = spans
+            .into_iter()
+            .map(|s| TextEdit { range: convert::range(&doc.index, s), new_text: new.clone() })
+            .collect();
+        Ok(Some(WorkspaceEdit::new(HashMap::from([(uri.clone(), edits)]))))
+    }
+
+    async fn document_symbol(&self, params: DocumentSymbolParams) -> Result<Option<DocumentSymbolResponse>> {
+        let st = self.lock();
+        let Some(doc) = st.docs.get(&params.text_document.uri) else { return Ok(None) };
+        let checked = check(&doc.text);
+        #[allow(deprecated)] // `deprecated` is a required field of the LSP type
+        let symbols = checked
+            .symbols
+            .iter()
+            .map(|s| {
+                let stmt = checked.program.stmts[s.stmt].span;
+                DocumentSymbol {
+                    name: s.name.clone(),
+                    detail: Some(format!("{:?}", s.def).to_lowercase()),
+                    kind: match format!("{:?}", s.def).as_str() {
+                        "Curve" => SymbolKind::CLASS,
+                        "Wave" => SymbolKind::EVENT,
+                        _ => SymbolKind::VARIABLE,
+                    },
+                    tags: None,
+                    deprecated: None,
+                    range: convert::range(&doc.index, stmt),
+                    selection_range: convert::range(&doc.index, s.span),
+                    children: None,
+                }
+            })
+            .collect();
+        Ok(Some(DocumentSymbolResponse::Nested(symbols)))
+    }
+
+    async fn formatting(&self, params: DocumentFormattingParams) -> Result<Option<Vec<TextEdit>>> {
+        let st = self.lock();
+        let Some(doc) = st.docs.get(&params.text_document.uri) else { return Ok(None) };
+        let formatted = kelp_lang::fmt::format(&doc.text);
+        if formatted == doc.text {
+            return Ok(Some(vec![]));
+        }
+        let whole = Span::new(0, doc.text.len());
+        Ok(Some(vec![TextEdit { range: convert::range(&doc.index, whole), new_text: formatted }]))
+    }
+}

@@ -1,0 +1,220 @@
+//! `kelp lsp` driven over stdio as an editor would (LSP 3.17 framing: Content-Length
+//! headers, JSON-RPC 2.0; positions in UTF-16 code units).
+
+use serde_json::{json, Value};
+use std::io::{BufRead, BufReader, Read, Write};
+use std::process::{Child, ChildStdin, Command, Stdio};
+use std::sync::mpsc::{channel, Receiver};
+use std::time::{Duration, Instant};
+
+struct Server {
+    child: Child,
+    stdin: ChildStdin,
+    rx: Receiver<Value>,
+    next_id: i64,
+}
+
+impl Server {
+    fn start() -> Server {
+        let mut child = Command::new(env!("CARGO_BIN_EXE_kelp"))
+            .arg("lsp")
+            .stdin(Stdio::piped())
+            .stdout(Stdio::piped())
+            .stderr(Stdio::null())
+            .spawn()
+            .expect("kelp lsp starts");
+        let stdin = child.stdin.take().unwrap();
+        let stdout = child.stdout.take().unwrap();
+        let (tx, rx) = channel();
+        std::thread::spawn(move || {
+            let mut r = BufReader::new(stdout);
+            loop {
+                let mut len = 0usize;
+                loop {
+                    let mut line = String::new();
+                    if r.read_line(&mut line).unwrap_or(0) == 0 {
+                        return;
+                    }
+                    let line = line.trim_end();
+                    if line.is_empty() {
+                        break;
+                    }
+                    if let Some(v) = line.strip_prefix("Content-Length: ") {
+                        len = v.parse().unwrap();
+                    }
+                }
+                let mut body = vec![0; len];
+                if r.read_exact(&mut body).is_err() {
+                    return;
+                }
+                if tx.send(serde_json::from_slice(&body).unwrap()).is_err() {
+                    return;
+                }
+            }
+        });
+        Server { child, stdin, rx, next_id: 1 }
+    }
+
+    fn send(&mut self, msg: Value) {
+        let body = msg.to_string();
+        write!(self.stdin, "Content-Length: {}\r\n\r\n{}", body.len(), body).unwrap();
+        self.stdin.flush().unwrap();
+    }
+
+    fn notify(&mut self, method: &str, params: Value) {
+        self.send(json!({"jsonrpc": "2.0", "method": method, "params": params}));
+    }
+
+    /// Sends a request and waits for its response (other messages are kept aside).
+    fn request(&mut self, method: &str, params: Value, aside: &mut Vec<Value>) -> Value {
+        let id = self.next_id;
+        self.next_id += 1;
+        self.send(json!({"jsonrpc": "2.0", "id": id, "method": method, "params": params}));
+        let deadline = Instant::now() + Duration::from_secs(20);
+        loop {
+            let m = self
+                .rx
+                .recv_timeout(deadline.saturating_duration_since(Instant::now()))
+                .unwrap_or_else(|_| panic!("no response to {method} in time"));
+            if m.get("id") == Some(&json!(id)) && m.get("method").is_none() {
+                return m;
+            }
+            aside.push(m);
+        }
+    }
+
+    /// Waits for a notification that satisfies `pred`.
+    fn wait_for(&mut self, aside: &mut Vec<Value>, pred: impl Fn(&Value) -> bool) -> Value {
+        if let Some(i) = aside.iter().position(&pred) {
+            return aside.remove(i);
+        }
+        let deadline = Instant::now() + Duration::from_secs(20);
+        loop {
+            let m = self
+                .rx
+                .recv_timeout(deadline.saturating_duration_since(Instant::now()))
+                .unwrap_or_else(|_| panic!("notification not seen in time; seen {aside:?}"));
+            if pred(&m) {
+                return m;
+            }
+            aside.push(m);
+        }
+    }
+}
+
+impl Drop for Server {
+    fn drop(&mut self) {
+        let _ = self.child.kill();
+    }
+}
+
+const URI: &str = "file:///tmp/kelp-lsp-test/lagoon.kelp";
+
+/// An invented experiment: a nodal quartic claimed to have genus 3 (it has genus 2), a
+/// theta value, and a Greek letter in a comment (two bytes in UTF-8, one UTF-16 unit).
+const TEXT: &str = "# λ-lagoon (invented)\n\
+curve shoal: x^4 + y^4 + y^2*z^2 - x^2*z^2\n\
+expect genus(shoal) == 3\n\
+let th = theta([[1i]], [0])\n\
+let   unused =  2\n";
+
+fn diagnostics_with(m: &Value, code: &str) -> Vec<Value> {
+    m["params"]["diagnostics"].as_array().unwrap().iter().filter(|d| d["code"] == code).cloned().collect()
+}
+
+#[test]
+fn an_editor_session_over_stdio() {
+    let mut s = Server::start();
+    let mut aside = Vec::new();
+    let init = s.request("initialize", json!({"processId": null, "rootUri": null, "capabilities": {}}), &mut aside);
+    assert_eq!(init["result"]["capabilities"]["positionEncoding"], "utf-16");
+    s.notify("initialized", json!({}));
+    s.notify(
+        "textDocument/didOpen",
+        json!({"textDocument": {"uri": URI, "languageId": "kelp", "version": 1, "text": TEXT}}),
+    );
+    // The evaluation-backed diagnostic: the wrong genus claim, on line 2, naming the node.
+    let m = s.wait_for(&mut aside, |m| {
+        m["method"] == "textDocument/publishDiagnostics" && !diagnostics_with(m, "K701").is_empty()
+    });
+    let d = &diagnostics_with(&m, "K701")[0];
+    assert_eq!(d["range"]["start"]["line"], 2);
+    let msg = d["message"].as_str().unwrap();
+    assert!(msg.contains("genus(shoal) = 2") && msg.contains("A1 (node)"), "{msg}");
+
+    // Hover on `th` (line 3, character 5): its computed value, theta(0 | i) = 1.0864...
+    let h = s.request(
+        "textDocument/hover",
+        json!({"textDocument": {"uri": URI}, "position": {"line": 3, "character": 5}}),
+        &mut aside,
+    );
+    let value = h["result"]["contents"]["value"].as_str().unwrap();
+    assert!(value.contains("1.08643481121330"), "{value}");
+    // Hover on the curve's name lists its singular point.
+    let h = s.request(
+        "textDocument/hover",
+        json!({"textDocument": {"uri": URI}, "position": {"line": 1, "character": 8}}),
+        &mut aside,
+    );
+    assert!(h["result"]["contents"]["value"].as_str().unwrap().contains("A1 (node)"), "{h}");
+    // Hover on a built-in: its signature.
+    let h = s.request(
+        "textDocument/hover",
+        json!({"textDocument": {"uri": URI}, "position": {"line": 3, "character": 10}}),
+        &mut aside,
+    );
+    assert!(h["result"]["contents"]["value"].as_str().unwrap().contains("theta(T, z"), "{h}");
+
+    // Go to definition from the use of `shoal` on line 2.
+    let g = s.request(
+        "textDocument/definition",
+        json!({"textDocument": {"uri": URI}, "position": {"line": 2, "character": 15}}),
+        &mut aside,
+    );
+    assert_eq!(g["result"]["range"]["start"], json!({"line": 1, "character": 6}));
+
+    // Formatting normalises the spacing of the last line.
+    let f = s.request(
+        "textDocument/formatting",
+        json!({"textDocument": {"uri": URI}, "options": {"tabSize": 4, "insertSpaces": true}}),
+        &mut aside,
+    );
+    assert!(f["result"][0]["newText"].as_str().unwrap().contains("let unused = 2\n"));
+
+    // An incremental edit that breaks line 4: a syntax diagnostic at once, at the right
+    // place, while the comment with the Greek letter keeps UTF-16 columns honest.
+    s.notify(
+        "textDocument/didChange",
+        json!({"textDocument": {"uri": URI, "version": 2}, "contentChanges": [
+            {"range": {"start": {"line": 4, "character": 15}, "end": {"line": 4, "character": 17}}, "text": "2 +"}
+        ]}),
+    );
+    let m = s.wait_for(&mut aside, |m| {
+        m["method"] == "textDocument/publishDiagnostics"
+            && m["params"]["version"] == 2
+            && !diagnostics_with(m, "K102").is_empty()
+    });
+    assert_eq!(diagnostics_with(&m, "K102")[0]["range"]["start"]["line"], 4);
+    // A stale change (version 2 again) is ignored, so the text stays broken.
+    s.notify(
+        "textDocument/didChange",
+        json!({"textDocument": {"uri": URI, "version": 2}, "contentChanges": [{"text": "let a = 1\n"}]}),
+    );
+    let r = s.request("textDocument/documentSymbol", json!({"textDocument": {"uri": URI}}), &mut aside);
+    let names: Vec<&str> = r["result"].as_array().unwrap().iter().map(|s| s["name"].as_str().unwrap()).collect();
+    assert!(names.contains(&"shoal") && names.contains(&"th"), "{names:?}");
+
+    // Malformed requests get JSON-RPC errors; the server lives on.
+    let bad = s.request("textDocument/hover", json!({"nonsense": true}), &mut aside);
+    assert!(bad.get("error").is_some(), "{bad}");
+    let again = s.request(
+        "textDocument/hover",
+        json!({"textDocument": {"uri": URI}, "position": {"line": 3, "character": 5}}),
+        &mut aside,
+    );
+    assert!(again.get("result").is_some());
+
+    let shut = s.request("shutdown", json!(null), &mut aside);
+    assert!(shut.get("error").is_none());
+    s.notify("exit", json!(null));
+}
