@@ -51,7 +51,8 @@ fn exit_codes() {
     assert_eq!(kelp(&["check", "/no/such/file.kelp"]).0, 2);
     assert_eq!(kelp(&["check"]).0, 2);
     assert_eq!(kelp(&["frobnicate"]).0, 2);
-    assert_eq!(kelp(&["lsp"]).0, 2);
+    // `kelp lsp` itself serves stdio (tested in lsp/tests/stdio.rs); stray arguments are usage errors.
+    assert_eq!(kelp(&["lsp", "--frobnicate"]).0, 2);
     let (code, _, err) = kelp(&["check", bad.to_str().unwrap()]);
     assert_eq!(code, 1);
     assert!(err.contains("K701") && err.contains("claim is false"), "{err}");

@@ -27,7 +27,7 @@ pub fn diagnostic(index: &LineIndex, uri: &lsp::Uri, d: &Diagnostic) -> lsp::Dia
     };
     let mut message = d.message.clone();
     for n in &d.notes {
-        message.push_str("\n");
+        message.push('\n');
         message.push_str(n);
     }
     let related: Vec<lsp::DiagnosticRelatedInformation> = d
