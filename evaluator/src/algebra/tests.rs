@@ -62,6 +62,13 @@ fn classical_singular_curves() {
     assert_eq!(reef.rational[0].coords.iter().map(|c| c.to_string()).collect::<Vec<_>>(), ["0", "1", "0"]);
     assert_eq!(kinds(&reef), vec!["E8"]);
     assert_eq!(reef.genus(), Ok(2));
+    // y^2 = x^5: an A4 at the origin (delta 2) and an E8 at (0 : 1 : 0) (delta 4):
+    // genus 6 - 6 = 0 (the curve is t -> (t^2, t^5)).
+    let a4 = facts("y^2 = x^5");
+    let mut k = kinds(&a4);
+    k.sort();
+    assert_eq!(k, vec!["A4", "E8"]);
+    assert_eq!(a4.genus(), Ok(0));
     // y^2 = f(x) with deg f = 6: a tacnode-like A5 at infinity (delta 3), genus 2.
     let sextic = facts("y^2 = x^6 + 3*x + 1");
     assert_eq!(sextic.genus(), Ok(2));
