@@ -165,6 +165,24 @@ fn an_editor_session_over_stdio() {
     );
     assert!(h["result"]["contents"]["value"].as_str().unwrap().contains("theta(T, z"), "{h}");
 
+    // Signature help inside theta's second argument; completion offers it as a snippet.
+    let sig = s.request(
+        "textDocument/signatureHelp",
+        json!({"textDocument": {"uri": URI}, "position": {"line": 3, "character": 24}}),
+        &mut aside,
+    );
+    assert!(sig["result"]["signatures"][0]["label"].as_str().unwrap().starts_with("theta(T, z"), "{sig}");
+    assert_eq!(sig["result"]["activeParameter"], 1);
+    let comp = s.request(
+        "textDocument/completion",
+        json!({"textDocument": {"uri": URI}, "position": {"line": 4, "character": 0}}),
+        &mut aside,
+    );
+    let items = comp["result"].as_array().unwrap();
+    let theta = items.iter().find(|i| i["label"] == "theta").unwrap();
+    assert_eq!(theta["insertText"], "theta(${1:tau}, ${2:z})");
+    assert!(items.iter().any(|i| i["label"] == "shoal") && items.iter().any(|i| i["label"] == "expect"));
+
     // Go to definition from the use of `shoal` on line 2.
     let g = s.request(
         "textDocument/definition",

@@ -8,6 +8,7 @@
 //! results are cached by the exact text, so reopening or undoing costs nothing.
 
 mod analysis;
+mod assist;
 mod convert;
 
 use analysis::{evaluate_text, EvalSummary};
@@ -179,6 +180,12 @@ impl LanguageServer for Backend {
                 rename_provider: Some(OneOf::Left(true)),
                 document_symbol_provider: Some(OneOf::Left(true)),
                 document_formatting_provider: Some(OneOf::Left(true)),
+                completion_provider: Some(CompletionOptions::default()),
+                signature_help_provider: Some(SignatureHelpOptions {
+                    trigger_characters: Some(vec!["(".into(), ",".into()]),
+                    ..Default::default()
+                }),
+                folding_range_provider: Some(FoldingRangeProviderCapability::Simple(true)),
                 ..ServerCapabilities::default()
             },
             ..Default::default()
@@ -368,5 +375,78 @@ impl LanguageServer for Backend {
         }
         let whole = Span::new(0, doc.text.len());
         Ok(Some(vec![TextEdit { range: convert::range(&doc.index, whole), new_text: formatted }]))
+    }
+
+    async fn completion(&self, params: CompletionParams) -> Result<Option<CompletionResponse>> {
+        let uri = params.text_document_position.text_document.uri;
+        let st = self.lock();
+        let Some(doc) = st.docs.get(&uri) else { return Ok(None) };
+        let checked = check(&doc.text);
+        let mut items: Vec<CompletionItem> = Vec::new();
+        for k in assist::STATEMENT_KEYWORDS.iter().chain(assist::OTHER_KEYWORDS) {
+            items.push(CompletionItem {
+                label: k.to_string(),
+                kind: Some(CompletionItemKind::KEYWORD),
+                ..Default::default()
+            });
+        }
+        for s in &checked.symbols {
+            items.push(CompletionItem {
+                label: s.name.clone(),
+                kind: Some(CompletionItemKind::VARIABLE),
+                detail: Some(format!("{:?}", s.def).to_lowercase()),
+                ..Default::default()
+            });
+        }
+        for b in kelp_lang::builtins::BUILTINS {
+            items.push(CompletionItem {
+                label: b.name.to_string(),
+                kind: Some(CompletionItemKind::FUNCTION),
+                detail: Some(b.signature.to_string()),
+                documentation: Some(Documentation::String(b.summary.to_string())),
+                insert_text: Some(assist::call_snippet(b)),
+                insert_text_format: Some(InsertTextFormat::SNIPPET),
+                ..Default::default()
+            });
+        }
+        Ok(Some(CompletionResponse::Array(items)))
+    }
+
+    async fn signature_help(&self, params: SignatureHelpParams) -> Result<Option<SignatureHelp>> {
+        let uri = params.text_document_position_params.text_document.uri;
+        let st = self.lock();
+        let Some(doc) = st.docs.get(&uri) else { return Ok(None) };
+        let at = convert::offset(&doc.index, params.text_document_position_params.position);
+        let Some((b, arg)) = assist::call_at(&doc.text, at) else { return Ok(None) };
+        let parameters: Vec<ParameterInformation> = b
+            .positional
+            .iter()
+            .chain(b.keywords)
+            .map(|p| ParameterInformation { label: ParameterLabel::Simple(p.name.to_string()), documentation: None })
+            .collect();
+        let active = arg.min(parameters.len().saturating_sub(1) as u32);
+        Ok(Some(SignatureHelp {
+            signatures: vec![SignatureInformation {
+                label: b.signature.to_string(),
+                documentation: Some(Documentation::String(b.summary.to_string())),
+                parameters: Some(parameters),
+                active_parameter: Some(active),
+            }],
+            active_signature: Some(0),
+            active_parameter: Some(active),
+        }))
+    }
+
+    async fn folding_range(&self, params: FoldingRangeParams) -> Result<Option<Vec<FoldingRange>>> {
+        let st = self.lock();
+        let Some(doc) = st.docs.get(&params.text_document.uri) else { return Ok(None) };
+        let checked = check(&doc.text);
+        let stmts: Vec<(usize, usize)> = checked.program.stmts.iter().map(|s| (s.span.start, s.span.end)).collect();
+        Ok(Some(
+            assist::folds(&doc.text, &stmts)
+                .into_iter()
+                .map(|(a, b)| FoldingRange { start_line: a, end_line: b, ..Default::default() })
+                .collect(),
+        ))
     }
 }

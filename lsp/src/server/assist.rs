@@ -1,0 +1,87 @@
+//! Typing assistance computed from the text alone: completion items, the signature of
+//! the call around the cursor, and folding ranges. Protocol-free results; `mod.rs`
+//! converts them.
+
+use kelp_lang::builtins::{Builtin, BUILTINS};
+
+pub const STATEMENT_KEYWORDS: &[&str] = &["set", "curve", "let", "wave", "expect", "sample", "plot"];
+pub const OTHER_KEYWORDS: &[&str] = &["over", "to", "within", "in", "step", "and", "or", "not", "true", "false"];
+
+/// A snippet for a call: required positional parameters as tab stops, required keyword
+/// arguments spelled out.
+pub fn call_snippet(b: &Builtin) -> String {
+    let mut parts = Vec::new();
+    let mut n = 1;
+    for p in b.positional.iter().filter(|p| p.required) {
+        parts.push(format!("${{{n}:{}}}", p.name));
+        n += 1;
+    }
+    for p in b.keywords.iter().filter(|p| p.required) {
+        parts.push(format!("{} = ${{{n}}}", p.name));
+        n += 1;
+    }
+    format!("{}({})", b.name, parts.join(", "))
+}
+
+/// The built-in whose argument list contains byte offset `at`, and the index of the
+/// argument the cursor is in (commas at depth 0 before it).
+pub fn call_at(text: &str, at: usize) -> Option<(&'static Builtin, u32)> {
+    let b = text.as_bytes();
+    let at = at.min(b.len());
+    let line_start = text[..at].rfind('\n').map_or(0, |i| i + 1);
+    let mut depth = 0i32;
+    let mut commas = 0u32;
+    let mut i = at;
+    while i > line_start {
+        i -= 1;
+        match b[i] {
+            b')' | b']' => depth += 1,
+            b'(' | b'[' if depth > 0 => depth -= 1,
+            // Inside a vector or matrix argument: its commas are not argument commas.
+            b'[' => commas = 0,
+            b',' if depth == 0 => commas += 1,
+            b'(' => {
+                let end = i;
+                let mut s = end;
+                while s > 0 && (b[s - 1].is_ascii_alphanumeric() || b[s - 1] == b'_') {
+                    s -= 1;
+                }
+                let name = &text[s..end];
+                return BUILTINS.iter().find(|bi| bi.name == name).map(|bi| (bi, commas));
+            }
+            _ => {}
+        }
+    }
+    None
+}
+
+/// Lines to fold: runs of two or more comment lines, and statements that span lines.
+pub fn folds(text: &str, statements: &[(usize, usize)]) -> Vec<(u32, u32)> {
+    let mut out = Vec::new();
+    let mut run: Option<(u32, u32)> = None;
+    for (n, line) in text.lines().enumerate() {
+        let n = n as u32;
+        if line.trim_start().starts_with('#') {
+            run = Some(run.map_or((n, n), |(s, _)| (s, n)));
+        } else {
+            if let Some((s, e)) = run.take() {
+                if e > s {
+                    out.push((s, e));
+                }
+            }
+        }
+    }
+    if let Some((s, e)) = run {
+        if e > s {
+            out.push((s, e));
+        }
+    }
+    for &(a, b) in statements {
+        let (la, lb) = (text[..a].matches('\n').count() as u32, text[..b].matches('\n').count() as u32);
+        if lb > la {
+            out.push((la, lb));
+        }
+    }
+    out.sort_unstable();
+    out
+}
