@@ -199,24 +199,37 @@ fn an_editor_session_over_stdio() {
     );
     assert!(f["result"][0]["newText"].as_str().unwrap().contains("let unused = 2\n"));
 
-    // An incremental edit that breaks line 4: a syntax diagnostic at once, at the right
-    // place, while the comment with the Greek letter keeps UTF-16 columns honest.
+    // A comment-only edit re-evaluates nothing: the very first publication for the new
+    // version already carries the claim's diagnostic, moved down one line.
     s.notify(
         "textDocument/didChange",
         json!({"textDocument": {"uri": URI, "version": 2}, "contentChanges": [
-            {"range": {"start": {"line": 4, "character": 15}, "end": {"line": 4, "character": 17}}, "text": "2 +"}
+            {"range": {"start": {"line": 0, "character": 0}, "end": {"line": 0, "character": 0}}, "text": "# survey note\n"}
+        ]}),
+    );
+    let m = s.wait_for(&mut aside, |m| m["method"] == "textDocument/publishDiagnostics" && m["params"]["version"] == 2);
+    let moved = diagnostics_with(&m, "K701");
+    assert_eq!(moved.len(), 1, "{m}");
+    assert_eq!(moved[0]["range"]["start"]["line"], 3);
+
+    // An incremental edit that breaks line 5: a syntax diagnostic at once, at the right
+    // place, while the comment with the Greek letter keeps UTF-16 columns honest.
+    s.notify(
+        "textDocument/didChange",
+        json!({"textDocument": {"uri": URI, "version": 3}, "contentChanges": [
+            {"range": {"start": {"line": 5, "character": 15}, "end": {"line": 5, "character": 17}}, "text": "2 +"}
         ]}),
     );
     let m = s.wait_for(&mut aside, |m| {
         m["method"] == "textDocument/publishDiagnostics"
-            && m["params"]["version"] == 2
+            && m["params"]["version"] == 3
             && !diagnostics_with(m, "K102").is_empty()
     });
-    assert_eq!(diagnostics_with(&m, "K102")[0]["range"]["start"]["line"], 4);
-    // A stale change (version 2 again) is ignored, so the text stays broken.
+    assert_eq!(diagnostics_with(&m, "K102")[0]["range"]["start"]["line"], 5);
+    // A stale change (version 3 again) is ignored, so the text stays broken.
     s.notify(
         "textDocument/didChange",
-        json!({"textDocument": {"uri": URI, "version": 2}, "contentChanges": [{"text": "let a = 1\n"}]}),
+        json!({"textDocument": {"uri": URI, "version": 3}, "contentChanges": [{"text": "let a = 1\n"}]}),
     );
     let r = s.request("textDocument/documentSymbol", json!({"textDocument": {"uri": URI}}), &mut aside);
     let names: Vec<&str> = r["result"].as_array().unwrap().iter().map(|s| s["name"].as_str().unwrap()).collect();
@@ -227,7 +240,7 @@ fn an_editor_session_over_stdio() {
     assert!(bad.get("error").is_some(), "{bad}");
     let again = s.request(
         "textDocument/hover",
-        json!({"textDocument": {"uri": URI}, "position": {"line": 3, "character": 5}}),
+        json!({"textDocument": {"uri": URI}, "position": {"line": 4, "character": 5}}),
         &mut aside,
     );
     assert!(again.get("result").is_some());

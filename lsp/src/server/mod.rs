@@ -5,11 +5,14 @@
 //! the document's is dropped. Syntax and checker diagnostics are published at once.
 //! Evaluation (curve algebra, theta values) runs on a blocking worker after a pause in
 //! typing, bounded in time, and is dropped if the document moved on meanwhile; its
-//! results are cached by the exact text, so reopening or undoing costs nothing.
+//! results are cached by the text's tokens without comments, so editing a comment,
+//! spacing, reopening or undoing re-evaluates nothing (`reuse.rs` moves the stored
+//! diagnostics to the new positions).
 
 mod analysis;
 mod assist;
 mod convert;
+mod reuse;
 
 use analysis::{evaluate_text, EvalSummary};
 use kelp_lang::span::LineIndex;
@@ -38,8 +41,22 @@ struct Doc {
 #[derive(Default)]
 struct State {
     docs: HashMap<Uri, Doc>,
-    /// Evaluations by exact text.
-    cache: HashMap<String, Arc<EvalSummary>>,
+    /// Evaluations by the text's shape (tokens without comments), with the token spans
+    /// of the text they were computed for.
+    cache: HashMap<String, (Arc<EvalSummary>, Vec<Span>)>,
+}
+
+impl State {
+    /// A cached evaluation for this text, re-anchored to it.
+    fn cached(&self, text: &str) -> Option<Arc<EvalSummary>> {
+        let now = reuse::shape(text);
+        let (summary, spans) = self.cache.get(&now.key)?;
+        if spans == &now.spans {
+            return Some(summary.clone());
+        }
+        let old = reuse::Shape { key: now.key.clone(), spans: spans.clone() };
+        Some(Arc::new(reuse::moved(summary, &old, &now)))
+    }
 }
 
 pub struct Backend {
@@ -75,7 +92,7 @@ impl Backend {
     async fn refresh(&self, uri: Uri) {
         let (diags, version, generation, text) = {
             let mut st = self.lock();
-            let cached = st.docs.get(&uri).and_then(|d| st.cache.get(&d.text).cloned());
+            let cached = st.docs.get(&uri).and_then(|d| st.cached(&d.text));
             let Some(doc) = st.docs.get_mut(&uri) else { return };
             doc.eval = cached.clone();
             let checked = check(&doc.text);
@@ -120,7 +137,8 @@ impl Backend {
                 if st.cache.len() > 64 {
                     st.cache.clear();
                 }
-                st.cache.insert(text, summary.clone());
+                let shape = reuse::shape(&text);
+                st.cache.insert(shape.key, (summary.clone(), shape.spans));
                 if !current(&st) {
                     return;
                 }
