@@ -33,6 +33,8 @@ struct Doc {
     text: String,
     version: i32,
     index: LineIndex,
+    /// The checked program of this version (parse + check run once per edit).
+    checked: Arc<kelp_lang::check::Checked>,
     /// Bumped on every edit; a finished evaluation publishes only if it is still current.
     generation: u64,
     eval: Option<Arc<EvalSummary>>,
@@ -95,9 +97,8 @@ impl Backend {
             let cached = st.docs.get(&uri).and_then(|d| st.cached(&d.text));
             let Some(doc) = st.docs.get_mut(&uri) else { return };
             doc.eval = cached.clone();
-            let checked = check(&doc.text);
             let mut diags: Vec<Diagnostic> =
-                checked.diagnostics.iter().map(|d| convert::diagnostic(&doc.index, &uri, d)).collect();
+                doc.checked.diagnostics.iter().map(|d| convert::diagnostic(&doc.index, &uri, d)).collect();
             if let Some(ev) = &cached {
                 diags.extend(ev.diagnostics.iter().map(|d| convert::diagnostic(&doc.index, &uri, d)));
             }
@@ -144,9 +145,8 @@ impl Backend {
                 }
                 let doc = st.docs.get_mut(&uri).unwrap();
                 doc.eval = Some(summary.clone());
-                let checked = check(&doc.text);
                 let mut diags: Vec<Diagnostic> =
-                    checked.diagnostics.iter().map(|d| convert::diagnostic(&doc.index, &uri, d)).collect();
+                    doc.checked.diagnostics.iter().map(|d| convert::diagnostic(&doc.index, &uri, d)).collect();
                 diags.extend(summary.diagnostics.iter().map(|d| convert::diagnostic(&doc.index, &uri, d)));
                 (diags, doc.version)
             };
@@ -159,7 +159,7 @@ impl Backend {
         let st = self.lock();
         let doc = st.docs.get(uri)?;
         let at = convert::offset(&doc.index, pos);
-        let checked = check(&doc.text);
+        let checked = &doc.checked;
         let hit = |s: Span| s.start <= at && at <= s.end;
         if let Some((i, s)) = checked.symbols.iter().enumerate().find(|(_, s)| hit(s.span)) {
             return Some((i, s.span, s.name.clone()));
@@ -219,7 +219,11 @@ impl LanguageServer for Backend {
         {
             let mut st = self.lock();
             let index = LineIndex::new(&d.text);
-            st.docs.insert(d.uri.clone(), Doc { text: d.text, version: d.version, index, generation: 0, eval: None });
+            let checked = Arc::new(check(&d.text));
+            st.docs.insert(
+                d.uri.clone(),
+                Doc { text: d.text, version: d.version, index, checked, generation: 0, eval: None },
+            );
         }
         self.refresh(d.uri).await;
     }
@@ -247,6 +251,7 @@ impl LanguageServer for Backend {
                 doc.index = LineIndex::new(&doc.text);
             }
             doc.version = params.text_document.version;
+            doc.checked = Arc::new(check(&doc.text));
             doc.generation += 1;
             doc.eval = None;
         }
@@ -307,8 +312,7 @@ impl LanguageServer for Backend {
         };
         let st = self.lock();
         let Some(doc) = st.docs.get(&uri) else { return Ok(None) };
-        let checked = check(&doc.text);
-        let s = &checked.symbols[sym];
+        let s = &doc.checked.symbols[sym];
         Ok(Some(GotoDefinitionResponse::Scalar(Location {
             uri: uri.clone(),
             range: convert::range(&doc.index, s.span),
@@ -322,7 +326,7 @@ impl LanguageServer for Backend {
         };
         let st = self.lock();
         let Some(doc) = st.docs.get(&uri) else { return Ok(None) };
-        let checked = check(&doc.text);
+        let checked = &doc.checked;
         let mut spans: Vec<Span> = checked.references.iter().filter(|r| r.symbol == sym).map(|r| r.span).collect();
         if params.context.include_declaration {
             spans.insert(0, checked.symbols[sym].span);
@@ -345,7 +349,7 @@ impl LanguageServer for Backend {
         };
         let st = self.lock();
         let Some(doc) = st.docs.get(&uri) else { return Ok(None) };
-        let checked = check(&doc.text);
+        let checked = &doc.checked;
         let mut spans = vec![checked.symbols[sym].span];
         spans.extend(checked.references.iter().filter(|r| r.symbol == sym).map(|r| r.span));
         let edits = spans
@@ -358,7 +362,7 @@ impl LanguageServer for Backend {
     async fn document_symbol(&self, params: DocumentSymbolParams) -> Result<Option<DocumentSymbolResponse>> {
         let st = self.lock();
         let Some(doc) = st.docs.get(&params.text_document.uri) else { return Ok(None) };
-        let checked = check(&doc.text);
+        let checked = &doc.checked;
         #[allow(deprecated)] // `deprecated` is a required field of the LSP type
         let symbols = checked
             .symbols
@@ -399,7 +403,7 @@ impl LanguageServer for Backend {
         let uri = params.text_document_position.text_document.uri;
         let st = self.lock();
         let Some(doc) = st.docs.get(&uri) else { return Ok(None) };
-        let checked = check(&doc.text);
+        let checked = &doc.checked;
         let mut items: Vec<CompletionItem> = Vec::new();
         for k in assist::STATEMENT_KEYWORDS.iter().chain(assist::OTHER_KEYWORDS) {
             items.push(CompletionItem {
@@ -458,7 +462,7 @@ impl LanguageServer for Backend {
     async fn folding_range(&self, params: FoldingRangeParams) -> Result<Option<Vec<FoldingRange>>> {
         let st = self.lock();
         let Some(doc) = st.docs.get(&params.text_document.uri) else { return Ok(None) };
-        let checked = check(&doc.text);
+        let checked = &doc.checked;
         let stmts: Vec<(usize, usize)> = checked.program.stmts.iter().map(|s| (s.span.start, s.span.end)).collect();
         Ok(Some(
             assist::folds(&doc.text, &stmts)
