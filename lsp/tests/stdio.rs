@@ -82,6 +82,24 @@ fn an_editor_session_over_stdio() {
     assert_eq!(theta["insertText"], "theta(${1:tau}, ${2:z})");
     assert!(items.iter().any(|i| i["label"] == "shoal") && items.iter().any(|i| i["label"] == "expect"));
 
+    // A code lens above `let th` runs `kelp.evaluate`, which answers with the value and
+    // tells the user.
+    let lenses = s.request("textDocument/codeLens", json!({"textDocument": {"uri": URI}}), &mut aside);
+    let lens = lenses["result"].as_array().unwrap().iter().find(|l| l["range"]["start"]["line"] == 3).unwrap().clone();
+    assert_eq!(lens["command"]["command"], "kelp.evaluate");
+    assert!(lens["command"]["title"].as_str().unwrap().starts_with("th = 1.08643481121330"), "{lens}");
+    let run = s.request(
+        "workspace/executeCommand",
+        json!({"command": "kelp.evaluate", "arguments": lens["command"]["arguments"]}),
+        &mut aside,
+    );
+    assert!(run["result"]["value"].as_str().unwrap().starts_with("1.08643481121330"), "{run}");
+    let shown = s.wait_for(&mut aside, |m| m["method"] == "window/showMessage");
+    assert!(shown["params"]["message"].as_str().unwrap().starts_with("th = 1.0864"));
+    let unknown =
+        s.request("workspace/executeCommand", json!({"command": "kelp.nothing", "arguments": []}), &mut aside);
+    assert!(unknown.get("error").is_some());
+
     // Go to definition from the use of `shoal` on line 2.
     let g = s.request(
         "textDocument/definition",

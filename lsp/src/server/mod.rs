@@ -24,6 +24,9 @@ use tower_lsp_server::jsonrpc::Result;
 use tower_lsp_server::ls_types::*;
 use tower_lsp_server::{Client, LanguageServer, LspService, Server};
 
+/// The command behind the code lenses: evaluate the file and report one value.
+const EVALUATE: &str = "kelp.evaluate";
+
 /// Pause after the last keystroke before evaluating.
 const DEBOUNCE: Duration = Duration::from_millis(150);
 /// Longest an evaluation may run before it is abandoned (its diagnostics say so).
@@ -204,6 +207,11 @@ impl LanguageServer for Backend {
                     ..Default::default()
                 }),
                 folding_range_provider: Some(FoldingRangeProviderCapability::Simple(true)),
+                code_lens_provider: Some(CodeLensOptions { resolve_provider: Some(false) }),
+                execute_command_provider: Some(ExecuteCommandOptions {
+                    commands: vec![EVALUATE.to_string()],
+                    ..Default::default()
+                }),
                 ..ServerCapabilities::default()
             },
             ..Default::default()
@@ -469,6 +477,95 @@ impl LanguageServer for Backend {
                 .into_iter()
                 .map(|(a, b)| FoldingRange { start_line: a, end_line: b, ..Default::default() })
                 .collect(),
+        ))
+    }
+
+    async fn code_lens(&self, params: CodeLensParams) -> Result<Option<Vec<CodeLens>>> {
+        let uri = params.text_document.uri;
+        let st = self.lock();
+        let Some(doc) = st.docs.get(&uri) else { return Ok(None) };
+        let mut lenses = Vec::new();
+        for s in &doc.checked.symbols {
+            let def = format!("{:?}", s.def);
+            if def != "Let" && def != "Wave" {
+                continue;
+            }
+            let shown = doc.eval.as_ref().and_then(|e| e.values.iter().find(|v| v.name == s.name));
+            let title = match shown {
+                Some(v) => {
+                    let mut d = v.display.clone();
+                    if d.chars().count() > 60 {
+                        d = d.chars().take(57).collect::<String>() + "...";
+                    }
+                    format!("{} = {d}", s.name)
+                }
+                None => format!("evaluate {}", s.name),
+            };
+            let line = convert::position(&doc.index, doc.checked.program.stmts[s.stmt].span.start).line;
+            let at = Position { line, character: 0 };
+            lenses.push(CodeLens {
+                range: Range { start: at, end: at },
+                command: Some(Command {
+                    title,
+                    command: EVALUATE.to_string(),
+                    arguments: Some(vec![serde_json::json!(uri.as_str()), serde_json::json!(s.name)]),
+                }),
+                data: None,
+            });
+        }
+        Ok(Some(lenses))
+    }
+
+    async fn execute_command(&self, params: ExecuteCommandParams) -> Result<Option<LSPAny>> {
+        use tower_lsp_server::jsonrpc::Error;
+        if params.command != EVALUATE {
+            return Err(Error::invalid_params(format!("unknown command `{}`", params.command)));
+        }
+        let arg = |i: usize| params.arguments.get(i).and_then(|v| v.as_str()).map(str::to_string);
+        let (Some(uri), Some(name)) = (arg(0), arg(1)) else {
+            return Err(Error::invalid_params("kelp.evaluate takes a document URI and a name"));
+        };
+        let uri: Uri = uri.parse().map_err(|_| Error::invalid_params("not a URI"))?;
+        let (text, cached) = {
+            let st = self.lock();
+            let Some(doc) = st.docs.get(&uri) else {
+                return Err(Error::invalid_params("the document is not open"));
+            };
+            (doc.text.clone(), doc.eval.clone())
+        };
+        // Progress only when the client offered a token: no request back to the client
+        // is awaited from here.
+        let progress = match params.work_done_progress_params.work_done_token {
+            Some(token) => Some(self.client.progress(token, format!("kelp: evaluating {name}")).begin().await),
+            None => None,
+        };
+        let summary = match cached {
+            Some(s) => s,
+            None => {
+                let job = tokio::task::spawn_blocking(move || evaluate_text(&text));
+                match tokio::time::timeout(EVAL_BUDGET, job).await {
+                    Ok(Ok(s)) => Arc::new(s),
+                    _ => {
+                        if let Some(p) = progress {
+                            p.finish_with_message("abandoned").await;
+                        }
+                        return Err(Error::internal_error());
+                    }
+                }
+            }
+        };
+        let shown = summary.values.iter().find(|v| v.name == name).cloned();
+        let message = match &shown {
+            Some(v) if v.error_bound > 0.0 => format!("{name} = {} (± {:.1e})", v.display, v.error_bound),
+            Some(v) => format!("{name} = {}", v.display),
+            None => format!("{name} has no value: see its diagnostics"),
+        };
+        if let Some(p) = progress {
+            p.finish_with_message(message.clone()).await;
+        }
+        self.client.show_message(MessageType::INFO, message).await;
+        Ok(shown.map(
+            |v| serde_json::json!({"name": v.name, "kind": v.kind, "value": v.display, "error_bound": v.error_bound}),
         ))
     }
 }
