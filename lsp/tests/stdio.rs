@@ -100,6 +100,18 @@ fn an_editor_session_over_stdio() {
         s.request("workspace/executeCommand", json!({"command": "kelp.nothing", "arguments": []}), &mut aside);
     assert!(unknown.get("error").is_some());
 
+    // Semantic tokens: the comment with a Greek letter is 21 UTF-16 units long; then the
+    // keyword `curve` and the name `shoal` on line 1; `theta` is a function on line 3.
+    let sem = s.request("textDocument/semanticTokens/full", json!({"textDocument": {"uri": URI}}), &mut aside);
+    let data: Vec<u64> = sem["result"]["data"].as_array().unwrap().iter().map(|v| v.as_u64().unwrap()).collect();
+    assert_eq!(&data[..15], &[0, 0, 21, 5, 0, 1, 0, 5, 0, 0, 0, 6, 5, 1, 0]);
+    let theta_at = data.chunks(5).scan((0, 0), |(l, c), t| {
+        *l += t[0];
+        *c = if t[0] == 0 { *c + t[1] } else { t[1] };
+        Some((*l, *c, t[3]))
+    });
+    assert!(theta_at.into_iter().any(|(l, c, k)| (l, c, k) == (3, 9, 2)));
+
     // Go to definition from the use of `shoal` on line 2.
     let g = s.request(
         "textDocument/definition",

@@ -85,3 +85,49 @@ pub fn folds(text: &str, statements: &[(usize, usize)]) -> Vec<(u32, u32)> {
     out.sort_unstable();
     out
 }
+
+/// Semantic token types, in the order announced in the legend.
+pub const TOKEN_TYPES: &[&str] = &["keyword", "variable", "function", "number", "string", "comment", "operator"];
+
+/// (byte span, token type index) for highlighting: keywords, names (functions when
+/// followed by `(`, and when a built-in), numbers, strings, comments, operators.
+pub fn semantic(text: &str) -> Vec<(kelp_lang::Span, u32)> {
+    use kelp_lang::lexer::{lex, Token};
+    let (tokens, _) = lex(text);
+    let mut out = Vec::with_capacity(tokens.len());
+    for (i, &(t, span)) in tokens.iter().enumerate() {
+        let kind = match t {
+            Token::Comment(_) => 5,
+            Token::Str(_) | Token::UnclosedStr(_) => 4,
+            Token::Int(_) | Token::Decimal(_) | Token::Imag(_) | Token::ImagUnit => 3,
+            Token::Ident(name) => {
+                let call = matches!(tokens.get(i + 1), Some((Token::LParen, _)));
+                if call && BUILTINS.iter().any(|b| b.name == name) {
+                    2
+                } else {
+                    1
+                }
+            }
+            Token::Newline | Token::Error | Token::LParen | Token::RParen | Token::LBracket | Token::RBracket => {
+                continue
+            }
+            Token::Comma | Token::Colon => continue,
+            Token::EqEq
+            | Token::NotEq
+            | Token::Le
+            | Token::Ge
+            | Token::Lt
+            | Token::Gt
+            | Token::Eq
+            | Token::Plus
+            | Token::Minus
+            | Token::Star
+            | Token::Slash
+            | Token::Caret
+            | Token::DotDot => 6,
+            _ => 0,
+        };
+        out.push((span, kind));
+    }
+    out
+}

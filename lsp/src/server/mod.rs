@@ -207,6 +207,17 @@ impl LanguageServer for Backend {
                     ..Default::default()
                 }),
                 folding_range_provider: Some(FoldingRangeProviderCapability::Simple(true)),
+                semantic_tokens_provider: Some(SemanticTokensServerCapabilities::SemanticTokensOptions(
+                    SemanticTokensOptions {
+                        legend: SemanticTokensLegend {
+                            token_types: assist::TOKEN_TYPES.iter().map(|t| SemanticTokenType::new(t)).collect(),
+                            token_modifiers: vec![],
+                        },
+                        full: Some(SemanticTokensFullOptions::Bool(true)),
+                        range: None,
+                        ..Default::default()
+                    },
+                )),
                 code_lens_provider: Some(CodeLensOptions { resolve_provider: Some(false) }),
                 execute_command_provider: Some(ExecuteCommandOptions {
                     commands: vec![EVALUATE.to_string()],
@@ -567,5 +578,29 @@ impl LanguageServer for Backend {
         Ok(shown.map(
             |v| serde_json::json!({"name": v.name, "kind": v.kind, "value": v.display, "error_bound": v.error_bound}),
         ))
+    }
+
+    async fn semantic_tokens_full(&self, params: SemanticTokensParams) -> Result<Option<SemanticTokensResult>> {
+        let st = self.lock();
+        let Some(doc) = st.docs.get(&params.text_document.uri) else { return Ok(None) };
+        // LSP's relative encoding: each token as (line delta, start delta, length, type, 0),
+        // lengths in UTF-16 units; a token spanning lines is cut at its first line.
+        let mut data = Vec::new();
+        let (mut prev_line, mut prev_start) = (0u32, 0u32);
+        for (span, kind) in assist::semantic(&doc.text) {
+            let start = convert::position(&doc.index, span.start);
+            let line_end = doc.text[span.start..span.end].find('\n').map_or(span.end, |i| span.start + i);
+            let end = convert::position(&doc.index, line_end);
+            let length = end.character.saturating_sub(start.character);
+            if length == 0 {
+                continue;
+            }
+            let delta_line = start.line - prev_line;
+            let delta_start = if delta_line == 0 { start.character - prev_start } else { start.character };
+            data.push(SemanticToken { delta_line, delta_start, length, token_type: kind, token_modifiers_bitset: 0 });
+            prev_line = start.line;
+            prev_start = start.character;
+        }
+        Ok(Some(SemanticTokensResult::Tokens(SemanticTokens { result_id: None, data })))
     }
 }
