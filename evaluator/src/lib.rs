@@ -3,7 +3,7 @@
 //! theta functions, Riemann matrices, KP waves and outputs.
 
 pub mod algebra;
-mod curve_fn;
+pub mod curve_fn;
 pub mod eval;
 pub mod json;
 pub mod linalg;

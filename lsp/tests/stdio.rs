@@ -112,6 +112,16 @@ fn an_editor_session_over_stdio() {
     });
     assert!(theta_at.into_iter().any(|(l, c, k)| (l, c, k) == (3, 9, 2)));
 
+    // Inlay hint after the curve: its genus and singular points.
+    let hints = s.request(
+        "textDocument/inlayHint",
+        json!({"textDocument": {"uri": URI}, "range": {"start": {"line": 0, "character": 0}, "end": {"line": 9, "character": 0}}}),
+        &mut aside,
+    );
+    let h = &hints["result"][0];
+    assert_eq!(h["position"]["line"], 1);
+    assert_eq!(h["label"].as_str().unwrap().trim(), "genus 2, 1 singular point", "{hints}");
+
     // Go to definition from the use of `shoal` on line 2.
     let g = s.request(
         "textDocument/definition",

@@ -18,6 +18,28 @@ pub struct ShownValue {
 pub struct EvalSummary {
     pub diagnostics: Vec<Diagnostic>,
     pub values: Vec<ShownValue>,
+    /// Per curve (by name): a short fact for an inlay hint ("genus 2", "reducible").
+    pub curve_hints: Vec<(String, String)>,
+}
+
+/// The inlay-hint fact of one curve.
+fn curve_hint(eq: &kelp_lang::check::CurveEquation) -> String {
+    use kelp_evaluator::algebra::curve::{analyse, NoGenus};
+    if eq.degree > kelp_evaluator::curve_fn::MAX_ALGEBRA_DEGREE {
+        return format!("degree {}", eq.degree);
+    }
+    let f = analyse(&eq.poly, eq.projective);
+    match f.genus() {
+        Ok(g) if f.smooth() => format!("smooth, genus {g}"),
+        Ok(g) => format!(
+            "genus {g}, {} singular point{}",
+            f.singular_count(),
+            if f.singular_count() == 1 { "" } else { "s" }
+        ),
+        Err(NoGenus::Reducible(_)) => "reducible".into(),
+        Err(NoGenus::NonReduced(_)) => "repeated factor".into(),
+        Err(NoGenus::Unsupported(_)) => format!("{} singular points, genus not decided", f.singular_count()),
+    }
 }
 
 /// Runs the evaluation of `text` (check included); a panic becomes a diagnostic.
@@ -35,7 +57,12 @@ pub fn evaluate_text(text: &str) -> EvalSummary {
                 error_bound: v.value.error_bound,
             })
             .collect();
-        EvalSummary { diagnostics: e.diagnostics, values }
+        let curve_hints = checked
+            .symbols
+            .iter()
+            .filter_map(|s| checked.curves.get(&s.stmt).map(|eq| (s.name.clone(), curve_hint(eq))))
+            .collect();
+        EvalSummary { diagnostics: e.diagnostics, values, curve_hints }
     });
     run.unwrap_or_else(|_| EvalSummary {
         diagnostics: vec![Diagnostic::error(
@@ -44,5 +71,6 @@ pub fn evaluate_text(text: &str) -> EvalSummary {
             "internal error while evaluating this file (please report it); syntax and checker diagnostics are still current",
         )],
         values: vec![],
+        curve_hints: vec![],
     })
 }

@@ -133,6 +133,7 @@ impl Backend {
                         format!("evaluation took longer than {} s and was abandoned", EVAL_BUDGET.as_secs()),
                     )],
                     values: vec![],
+                    curve_hints: vec![],
                 },
             };
             let summary = Arc::new(summary);
@@ -218,6 +219,7 @@ impl LanguageServer for Backend {
                         ..Default::default()
                     },
                 )),
+                inlay_hint_provider: Some(OneOf::Left(true)),
                 code_lens_provider: Some(CodeLensOptions { resolve_provider: Some(false) }),
                 execute_command_provider: Some(ExecuteCommandOptions {
                     commands: vec![EVALUATE.to_string()],
@@ -603,4 +605,41 @@ impl LanguageServer for Backend {
         }
         Ok(Some(SemanticTokensResult::Tokens(SemanticTokens { result_id: None, data })))
     }
+
+    async fn inlay_hint(&self, params: InlayHintParams) -> Result<Option<Vec<InlayHint>>> {
+        let st = self.lock();
+        let Some(doc) = st.docs.get(&params.text_document.uri) else { return Ok(None) };
+        let Some(eval) = &doc.eval else { return Ok(Some(vec![])) };
+        let mut hints = Vec::new();
+        for s in &doc.checked.symbols {
+            // After a curve: its genus or what stands in the way; after a matrix value: its size.
+            let label = if let Some((_, h)) = eval.curve_hints.iter().find(|(n, _)| *n == s.name) {
+                h.clone()
+            } else if let Some(v) = eval.values.iter().find(|v| v.name == s.name && v.kind == "matrix") {
+                size_of(&v.display)
+            } else {
+                continue;
+            };
+            let end = doc.checked.program.stmts[s.stmt].span.end;
+            hints.push(InlayHint {
+                position: convert::position(&doc.index, end),
+                label: InlayHintLabel::String(format!("  {label}")),
+                kind: None,
+                text_edits: None,
+                tooltip: None,
+                padding_left: Some(true),
+                padding_right: None,
+                data: None,
+            });
+        }
+        Ok(Some(hints))
+    }
+}
+
+/// "r x c" of a displayed matrix `[[a, b], [c, d]]`.
+fn size_of(display: &str) -> String {
+    let rows = display.matches("], [").count() + 1;
+    let first = display.trim_start_matches('[').split(']').next().unwrap_or("");
+    let cols = first.split(", ").count();
+    format!("{rows} x {cols}")
 }
