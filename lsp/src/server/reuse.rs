@@ -78,7 +78,7 @@ mod tests {
         let (sa, sb) = (shape(a), shape(b));
         assert_eq!(sa.key, sb.key);
         let d = Diagnostic::error(Code::EvalFailed, Span::new(8, 13), "division by zero");
-        let s = EvalSummary { diagnostics: vec![d], values: vec![] };
+        let s = EvalSummary { diagnostics: vec![d], ..Default::default() };
         let m = moved(&s, &sa, &sb);
         assert_eq!(&b[m.diagnostics[0].span.range()], "1 / 0");
         assert_ne!(shape("let x = 2 / 0\n").key, sa.key);
