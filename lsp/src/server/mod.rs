@@ -43,6 +43,15 @@ struct Doc {
     eval: Option<Arc<EvalSummary>>,
 }
 
+impl Doc {
+    /// Everything to publish for this version: the checker's diagnostics and, when the
+    /// evaluation is known, its diagnostics.
+    fn diagnostics(&self, uri: &Uri) -> Vec<Diagnostic> {
+        let eval = self.eval.iter().flat_map(|e| e.diagnostics.iter());
+        self.checked.diagnostics.iter().chain(eval).map(|d| convert::diagnostic(&self.index, uri, d)).collect()
+    }
+}
+
 #[derive(Default)]
 struct State {
     docs: HashMap<Uri, Doc>,
@@ -100,12 +109,12 @@ impl Backend {
             let cached = st.docs.get(&uri).and_then(|d| st.cached(&d.text));
             let Some(doc) = st.docs.get_mut(&uri) else { return };
             doc.eval = cached.clone();
-            let mut diags: Vec<Diagnostic> =
-                doc.checked.diagnostics.iter().map(|d| convert::diagnostic(&doc.index, &uri, d)).collect();
-            if let Some(ev) = &cached {
-                diags.extend(ev.diagnostics.iter().map(|d| convert::diagnostic(&doc.index, &uri, d)));
-            }
-            (diags, doc.version, doc.generation, if cached.is_some() { None } else { Some(doc.text.clone()) })
+            (
+                doc.diagnostics(&uri),
+                doc.version,
+                doc.generation,
+                if cached.is_some() { None } else { Some(doc.text.clone()) },
+            )
         };
         self.client.publish_diagnostics(uri.clone(), diags, Some(version)).await;
         if let Some(text) = text {
@@ -149,10 +158,7 @@ impl Backend {
                 }
                 let doc = st.docs.get_mut(&uri).unwrap();
                 doc.eval = Some(summary.clone());
-                let mut diags: Vec<Diagnostic> =
-                    doc.checked.diagnostics.iter().map(|d| convert::diagnostic(&doc.index, &uri, d)).collect();
-                diags.extend(summary.diagnostics.iter().map(|d| convert::diagnostic(&doc.index, &uri, d)));
-                (diags, doc.version)
+                (doc.diagnostics(&uri), doc.version)
             };
             client.publish_diagnostics(uri, publish.0, Some(publish.1)).await;
         });
