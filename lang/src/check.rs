@@ -618,7 +618,7 @@ impl Checker {
     fn infer(&mut self, e: &Expr) -> Kind {
         match &e.kind {
             ExprKind::Number(t) | ExprKind::Imag(t) => {
-                if let Err(m) = parse_exact(t) {
+                if let Some(m) = crate::number::literal_error(t) {
                     self.error(Code::NumberTooLarge, e.span, m);
                 }
                 Kind::Number

@@ -9,6 +9,31 @@ use num_traits::{One, Zero};
 pub const MAX_LITERAL_DIGITS: usize = 10_000;
 pub const MAX_DECIMAL_EXPONENT: i64 = 10_000;
 
+/// Why a literal would be refused by [`parse_exact`], without building the number
+/// (the checker validates every literal; only the evaluator needs its value).
+pub fn literal_error(text: &str) -> Option<String> {
+    let (mantissa, exp) = match text.find(['e', 'E']) {
+        Some(i) => match text[i + 1..].parse::<i64>() {
+            Ok(e) => (&text[..i], e),
+            Err(_) => {
+                return Some(format!("the exponent of `{text}` is too large (at most {MAX_DECIMAL_EXPONENT} in size)"))
+            }
+        },
+        None => (text, 0),
+    };
+    if exp.abs() > MAX_DECIMAL_EXPONENT {
+        return Some(format!("the exponent of `{text}` is too large (at most {MAX_DECIMAL_EXPONENT} in size)"));
+    }
+    let digits = mantissa.bytes().filter(|b| *b != b'.').count();
+    if digits > MAX_LITERAL_DIGITS {
+        return Some(format!("a literal of {digits} digits is longer than the supported {MAX_LITERAL_DIGITS}"));
+    }
+    if digits == 0 || mantissa.bytes().filter(|b| *b == b'.').count() > 1 || !mantissa.bytes().all(|b| b.is_ascii_digit() || b == b'.') {
+        return Some(format!("`{text}` is not a number"));
+    }
+    None
+}
+
 /// Parses an integer or decimal literal exactly. The error says why it was refused.
 pub fn parse_exact(text: &str) -> Result<BigRational, String> {
     let (mantissa, exp) = match text.find(['e', 'E']) {
@@ -99,5 +124,20 @@ mod tests {
         assert!(to_f64(&big).is_infinite());
         let tiny_ratio = parse_exact("1e400").unwrap() / parse_exact("3e400").unwrap();
         assert!((to_f64(&tiny_ratio) - 1.0 / 3.0).abs() < 1e-16);
+    }
+}
+
+#[cfg(test)]
+mod literal_checks {
+    use super::*;
+
+    /// The cheap check refuses exactly what the exact parser refuses.
+    #[test]
+    fn literal_error_agrees_with_parse_exact() {
+        for t in ["0", "12", "0.5", "1e-10", "2.5E3", "1e99999999", "1e10001", "007", "1.2.3", ".", "1e"] {
+            assert_eq!(literal_error(t).is_some(), parse_exact(t).is_err(), "{t}");
+        }
+        let long = "9".repeat(MAX_LITERAL_DIGITS + 1);
+        assert!(literal_error(&long).is_some() && parse_exact(&long).is_err());
     }
 }
