@@ -45,6 +45,23 @@ impl Evaluator<'_> {
     }
 
     pub(crate) fn curve_fact(&mut self, what: &str, c: &CurveValue, span: Span) -> Result<Valued, Fail> {
+        if what == "j_invariant" {
+            use crate::algebra::jinv;
+            let Some(f) = jinv::as_y2_equals(&c.equation.poly, c.equation.projective) else {
+                return Err(fail(
+                    Code::NotSupported,
+                    span,
+                    format!(
+                        "`j_invariant` is computed for curves written y^2 = f(x) with deg f = 3 or 4; \
+                         `{}` has another shape, which is not supported yet",
+                        c.name
+                    ),
+                ));
+            };
+            return jinv::j_invariant(&f)
+                .map(|j| Valued::exact(Value::Num(Num::Exact(j))))
+                .map_err(|m| fail(Code::EvalFailed, span, format!("`{}` has no j-invariant: {m}", c.name)));
+        }
         let f = self.facts(c, span)?;
         let summary = if f.smooth() { "smooth".to_string() } else { f.summary().join("; ") };
         match what {

@@ -389,7 +389,7 @@ impl Evaluator<'_> {
                 Ok(Valued { value: Value::Bool(r.holds()), error_bound: 0.0, reason: Some(r.reason()) })
             }
             "theta" => self.theta_call(span, args),
-            "smooth" | "genus" | "singular_points" => {
+            "smooth" | "genus" | "singular_points" | "j_invariant" => {
                 let Value::Curve(c) = first(self)?.value else {
                     return Err(fail(Code::WrongKind, arg_span, format!("`{}` needs a curve", func.name)));
                 };
@@ -403,7 +403,6 @@ impl Evaluator<'_> {
 /// What is missing for a function kelp does not compute yet.
 fn not_supported(name: &str) -> String {
     let why = match name {
-        "j_invariant" => "the exact j-invariant of genus-1 curves is not built yet",
         "tau" => "Riemann matrices of curves are not computed yet",
         _ => "KP waves are not computed yet",
     };

@@ -28,7 +28,10 @@ pub fn literal_error(text: &str) -> Option<String> {
     if digits > MAX_LITERAL_DIGITS {
         return Some(format!("a literal of {digits} digits is longer than the supported {MAX_LITERAL_DIGITS}"));
     }
-    if digits == 0 || mantissa.bytes().filter(|b| *b == b'.').count() > 1 || !mantissa.bytes().all(|b| b.is_ascii_digit() || b == b'.') {
+    if digits == 0
+        || mantissa.bytes().filter(|b| *b == b'.').count() > 1
+        || !mantissa.bytes().all(|b| b.is_ascii_digit() || b == b'.')
+    {
         return Some(format!("`{text}` is not a number"));
     }
     None

@@ -71,7 +71,7 @@ fn matrix_arithmetic() {
 
 #[test]
 fn mathematics_not_built_yet_gives_no_value() {
-    let r = run("curve c: y^2 = x^3 - x\nlet j = j_invariant(c)\nexpect j == 1728\nexpect degree(c) == 3\n");
+    let r = run("curve c: y^2 = x^3 - x\nlet t = tau(c)\nexpect is_riemann(t)\nexpect degree(c) == 3\n");
     assert_eq!(r.codes, vec![Code::NotSupported, Code::DependsOnFailed]);
     assert_eq!(r.passed, vec![None, Some(true)]);
 }
@@ -135,6 +135,18 @@ fn curve_claims_end_to_end() {
         msg.contains("genus(nodal) = 2") && msg.contains("(0 : 0 : 1): A1 (node)") && msg.contains("delta 1"),
         "{msg}"
     );
+}
+
+#[test]
+fn j_invariants_are_exact() {
+    // y^2 = x^3 - x: j = 1728; y^2 = x(x-1)(x-2): lambda = 2, j = 256 (1 - 2 + 4)^3 / (4 * 1) = 1728;
+    // y^2 = x^3 + 1: j = 0 (Silverman, The Arithmetic of Elliptic Curves, III.1).
+    let r = run("curve a: y^2 = x^3 - x\ncurve b: y^2 = x*(x - 1)*(x - 2)\ncurve c: y^2 = x^3 + 1\n\
+         curve e: y^2 = x^4 - 1\n\
+         expect j_invariant(a) == 1728\nexpect j_invariant(b) == 1728\nexpect j_invariant(c) == 0\n\
+         expect j_invariant(e) == 1728\n");
+    // y^2 = x^4 - 1: branch points +-1, +-i (harmonic), j = 1728.
+    assert_eq!(r.passed, vec![Some(true); 4], "{:?}", r.messages);
 }
 
 #[test]

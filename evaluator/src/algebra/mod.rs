@@ -3,6 +3,7 @@
 
 pub mod bivar;
 pub mod curve;
+pub mod jinv;
 pub mod local;
 pub mod local_ext;
 pub mod roots;
