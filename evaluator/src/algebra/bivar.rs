@@ -190,22 +190,6 @@ impl P2 {
     }
 }
 
-/// The polynomial of least degree through the points (Newton's divided differences).
-pub fn interpolate(xs: &[BigRational], ys: &[BigRational]) -> UPoly {
-    let n = xs.len();
-    let mut dd = ys.to_vec();
-    for k in 1..n {
-        for i in (k..n).rev() {
-            dd[i] = (&dd[i] - &dd[i - 1]) / (&xs[i] - &xs[i - k]);
-        }
-    }
-    let mut p = UPoly::zero();
-    for k in (0..n).rev() {
-        p = p.mul(&UPoly::new(vec![-xs[k].clone(), BigRational::one()])).add(&UPoly::new(vec![dd[k].clone()]));
-    }
-    p
-}
-
 /// The local intersection multiplicity at the origin of two curves p = 0 and q = 0
 /// (`None` when they share a component through it), by Fulton's algorithm (*Algebraic
 /// Curves*, section 3.3): I(P, yH) = I(P, y) + I(P, H), and replacing q by a

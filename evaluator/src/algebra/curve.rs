@@ -205,7 +205,7 @@ pub fn analyse(poly: &Poly, projective: bool) -> CurveFacts {
                     description: format!(
                         "affine points with {} = {x0} and y a root of {}",
                         if c == 0 { "x".to_string() } else { format!("x - {c}*y") },
-                        show(&h4, "y")
+                        h4.primitive().show("y")
                     ),
                     count: h4.degree().unwrap_or(0),
                     approx,
@@ -222,7 +222,11 @@ pub fn analyse(poly: &Poly, projective: bool) -> CurveFacts {
         // Above the irrational roots of `rest`: how many distinct common roots y of f,
         // f_x, f_y, exactly, by gcds over Q[x]/(rest) that split it where needed.
         let (rf, ru, rv) = (as_rpoly(&fa), as_rpoly(&fu), as_rpoly(&fv));
-        let what = if c == 0 { "x".to_string() } else { format!("x - {c}*y") };
+        let what = match c {
+            0 => "x".to_string(),
+            1 => "x - y".to_string(),
+            _ => format!("x - {c}*y"),
+        };
         for (h1, g1) in tower::gcd(&rest, &rf, &ru) {
             for (h2, g2) in tower::gcd(&h1, &g1, &rv) {
                 for (h3, sq) in tower::squarefree(&h2, &g2) {
@@ -237,7 +241,7 @@ pub fn analyse(poly: &Poly, projective: bool) -> CurveFacts {
                         facts.irrational.push(IrrationalPoints {
                             description: format!(
                                 "{k} affine points above each root of {} (x = {what})",
-                                show(&h3, "x")
+                                h3.primitive().show("x")
                             ),
                             count: k * h3.degree().unwrap_or(0),
                             approx: approx(&h3),
@@ -252,9 +256,9 @@ pub fn analyse(poly: &Poly, projective: bool) -> CurveFacts {
                         let beta4 = beta.rem(&h4);
                         facts.irrational.push(IrrationalPoints {
                             description: format!(
-                                "({what}, y) = (x, {}) with x a root of {}",
-                                show(&beta4, "x"),
-                                show(&h4, "x")
+                                "({what}, y) = (t, {}) with t a root of {}",
+                                beta4.show("t"),
+                                h4.primitive().show("t")
                             ),
                             count: h4.degree().unwrap_or(0),
                             approx: approx(&h4),
@@ -293,7 +297,10 @@ pub fn analyse(poly: &Poly, projective: bool) -> CurveFacts {
                 let approx =
                     roots::complex_roots(&h4).into_iter().map(|z| (z, roots::inclusion_radius(&h4, z))).collect();
                 facts.irrational.push(IrrationalPoints {
-                    description: format!("points at infinity (1 : y : 0) with y a root of {}", show(&h4, "y")),
+                    description: format!(
+                        "points at infinity (1 : y : 0) with y a root of {}",
+                        h4.primitive().show("y")
+                    ),
                     count: h4.degree().unwrap_or(0),
                     approx,
                     local: Some(local),
@@ -460,20 +467,4 @@ impl CurveFacts {
 
 pub fn show_point(c: &[BigRational; 3]) -> String {
     format!("({} : {} : {})", c[0], c[1], c[2])
-}
-
-fn show(p: &UPoly, var: &str) -> String {
-    let mut terms = Vec::new();
-    for (i, c) in p.primitive().0.iter().enumerate().rev() {
-        if c.is_zero() {
-            continue;
-        }
-        let coef = if c.is_one() && i > 0 { String::new() } else { format!("{c}*") };
-        terms.push(match i {
-            0 => format!("{c}"),
-            1 => format!("{coef}{var}"),
-            _ => format!("{coef}{var}^{i}"),
-        });
-    }
-    terms.join(" + ").replace("+ -", "- ").replace("*", "")
 }

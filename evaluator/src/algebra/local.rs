@@ -5,7 +5,6 @@
 
 use super::bivar::P2;
 use super::upoly::UPoly;
-use num_traits::Zero;
 
 #[derive(Clone, Debug, PartialEq)]
 pub struct Local {
@@ -120,7 +119,7 @@ fn walk(p: &P2, depth: usize, tree: &mut Vec<u32>) -> Result<(u64, u32), Unsuppo
             return Err(format!(
                 "a repeated tangent direction with irrational slope (roots of {}) needs arithmetic in a number field, \
                  which is not built yet",
-                show(&mult_sf)
+                mult_sf.primitive().show("t")
             ));
         }
         for t0 in roots {
@@ -139,21 +138,6 @@ fn walk(p: &P2, depth: usize, tree: &mut Vec<u32>) -> Result<(u64, u32), Unsuppo
         }
     }
     Ok((delta, branches))
-}
-
-fn show(p: &UPoly) -> String {
-    let mut terms = Vec::new();
-    for (i, c) in p.primitive().0.iter().enumerate().rev() {
-        if c.is_zero() {
-            continue;
-        }
-        terms.push(match i {
-            0 => format!("{c}"),
-            1 => format!("{c}*t"),
-            _ => format!("{c}*t^{i}"),
-        });
-    }
-    terms.join(" + ").replace("+ -", "- ")
 }
 
 /// The usual names: A_k, D_k, E6, E7, E8 (simple singularities, classified by the

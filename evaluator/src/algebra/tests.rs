@@ -178,3 +178,19 @@ mod invariance {
         }
     }
 }
+
+#[test]
+fn irrational_points_are_described_by_their_exact_coordinates() {
+    // (y - x/2)^2 = (x^2 - 2)^2 (x + 3): nodes at (+-sqrt(2), +-sqrt(2)/2). The analysis
+    // shears to x - y (the y^2 term alone does not reach degree 5), where the nodes are
+    // (t, t) with 2t^2 = 1: x = 2t = +-sqrt(2), y = t (worked by hand). The value of y
+    // must be printed as it is, not rescaled like a defining polynomial.
+    let f = facts("(y - x/2)^2 = (x^2 - 2)^2*(x + 3)");
+    let irr = f.irrational.iter().find(|i| i.count == 2).unwrap();
+    assert_eq!(irr.description, "(x - y, y) = (t, t) with t a root of 2*t^2 - 1");
+    let f2 = facts("(y - 3*x/2)^2 = (x^2 - 2)^2*(x + 3)");
+    let irr2 = f2.irrational.iter().find(|i| i.count == 2).unwrap();
+    // Nodes at (+-sqrt(2), +-3 sqrt(2)/2): x - y = -x/2 = t, so y = -3t, 8 t^2 = 4.
+    assert_eq!(irr2.description, "(x - y, y) = (t, -3*t) with t a root of 2*t^2 - 1");
+    assert_eq!(irr.local.as_ref().unwrap().as_ref().unwrap().kind, "A1 (node)");
+}

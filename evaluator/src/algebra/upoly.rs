@@ -170,6 +170,39 @@ impl UPoly {
             b = r;
         }
     }
+    /// Exact rendering in the variable `var`, highest degree first (`x^2 - 3/7*x + 1`).
+    /// Values print as they are; call on `primitive()` to show a defining polynomial.
+    pub fn show(&self, var: &str) -> String {
+        if self.is_zero() {
+            return "0".into();
+        }
+        let mut out = String::new();
+        for (i, c) in self.0.iter().enumerate().rev() {
+            if c.is_zero() {
+                continue;
+            }
+            let mag = c.abs();
+            let sign = if c.is_negative() { "-" } else { "+" };
+            if out.is_empty() {
+                if c.is_negative() {
+                    out.push('-');
+                }
+            } else {
+                out.push_str(&format!(" {sign} "));
+            }
+            let power = match i {
+                0 => String::new(),
+                1 => var.to_string(),
+                _ => format!("{var}^{i}"),
+            };
+            out.push_str(&match (i, mag.is_one()) {
+                (0, _) => format!("{mag}"),
+                (_, true) => power,
+                _ => format!("{mag}*{power}"),
+            });
+        }
+        out
+    }
     /// Rational roots, each once, found from numerical roots and checked exactly (a
     /// rational root p/q of the primitive polynomial has q | lead, so lead * root is an
     /// integer).
@@ -227,6 +260,13 @@ mod tests {
         // (product formula: lc^2 * prod f'(roots) = (-1)(2)(2) = -4).
         let f = UPoly::from_ints(&[0, -1, 0, 1]);
         assert_eq!(f.resultant(&f.derivative()), q(-4));
+    }
+
+    #[test]
+    fn exact_rendering() {
+        let p = UPoly::new(vec![q(1), BigRational::new((-3).into(), 7.into()), q(0), q(-1)]);
+        assert_eq!(p.show("x"), "-x^3 - 3/7*x + 1");
+        assert_eq!(UPoly::zero().show("y"), "0");
     }
 
     #[test]
