@@ -2,7 +2,7 @@
 //! computed once per curve, with an information diagnostic at the curve's name listing
 //! its singular points.
 
-use crate::algebra::curve::{analyse, CurveFacts, NoGenus};
+use crate::algebra::curve::{CurveFacts, NoGenus};
 use crate::eval::{fail, Evaluator, Fail};
 use crate::num::Num;
 use crate::value::{CurveValue, SingularInfo, Value, Valued};
@@ -15,10 +15,8 @@ pub const MAX_ALGEBRA_DEGREE: u32 = 12;
 
 impl Evaluator<'_> {
     fn facts(&mut self, c: &CurveValue, span: Span) -> Result<Rc<CurveFacts>, Fail> {
-        if let Some(f) = c.facts.get() {
-            return Ok(f.clone());
-        }
-        if c.equation.degree > MAX_ALGEBRA_DEGREE {
+        let first_use = c.facts.get().is_none();
+        let Some(f) = c.facts() else {
             return Err(fail(
                 Code::BudgetExceeded,
                 span,
@@ -27,9 +25,10 @@ impl Evaluator<'_> {
                     c.name, c.equation.degree
                 ),
             ));
+        };
+        if !first_use {
+            return Ok(f);
         }
-        let f = Rc::new(analyse(&c.equation.poly, c.equation.projective));
-        let _ = c.facts.set(f.clone());
         if let Some(def) = self.curve_span(&c.name) {
             let lines = f.summary();
             let msg = if lines.is_empty() {

@@ -13,6 +13,21 @@ pub struct CurveValue {
     pub facts: std::cell::OnceCell<Rc<crate::algebra::curve::CurveFacts>>,
 }
 
+impl CurveValue {
+    /// The curve's singular points and genus facts, computed on first use and kept;
+    /// `None` above the degree the exact algebra accepts.
+    pub fn facts(&self) -> Option<Rc<crate::algebra::curve::CurveFacts>> {
+        if self.equation.degree > crate::curve_fn::MAX_ALGEBRA_DEGREE {
+            return None;
+        }
+        Some(
+            self.facts
+                .get_or_init(|| Rc::new(crate::algebra::curve::analyse(&self.equation.poly, self.equation.projective)))
+                .clone(),
+        )
+    }
+}
+
 /// A singular point with its local invariants.
 #[derive(Clone, Debug)]
 pub struct SingularInfo {

@@ -22,23 +22,18 @@ pub struct EvalSummary {
     pub curve_hints: Vec<(String, String)>,
 }
 
-/// The inlay-hint fact of one curve.
-fn curve_hint(eq: &kelp_lang::check::CurveEquation) -> String {
-    use kelp_evaluator::algebra::curve::{analyse, NoGenus};
-    if eq.degree > kelp_evaluator::curve_fn::MAX_ALGEBRA_DEGREE {
-        return format!("degree {}", eq.degree);
-    }
-    let f = analyse(&eq.poly, eq.projective);
+/// The inlay-hint fact of one curve: from the facts the evaluation already computed
+/// (or computes now, once, for a curve no claim asked about).
+fn curve_hint(c: &kelp_evaluator::value::CurveValue) -> String {
+    use kelp_evaluator::algebra::curve::NoGenus;
+    let Some(f) = c.facts() else { return format!("degree {}", c.equation.degree) };
+    let n = f.singular_count();
     match f.genus() {
         Ok(g) if f.smooth() => format!("smooth, genus {g}"),
-        Ok(g) => format!(
-            "genus {g}, {} singular point{}",
-            f.singular_count(),
-            if f.singular_count() == 1 { "" } else { "s" }
-        ),
+        Ok(g) => format!("genus {g}, {n} singular point{}", if n == 1 { "" } else { "s" }),
         Err(NoGenus::Reducible(_)) => "reducible".into(),
         Err(NoGenus::NonReduced(_)) => "repeated factor".into(),
-        Err(NoGenus::Unsupported(_)) => format!("{} singular points, genus not decided", f.singular_count()),
+        Err(NoGenus::Unsupported(_)) => format!("{n} singular points, genus not decided"),
     }
 }
 
@@ -57,10 +52,13 @@ pub fn evaluate_text(text: &str) -> EvalSummary {
                 error_bound: v.value.error_bound,
             })
             .collect();
-        let curve_hints = checked
-            .symbols
+        let curve_hints = e
+            .values
             .iter()
-            .filter_map(|s| checked.curves.get(&s.stmt).map(|eq| (s.name.clone(), curve_hint(eq))))
+            .filter_map(|v| match &v.value.value {
+                kelp_evaluator::Value::Curve(c) => Some((v.name.clone(), curve_hint(c))),
+                _ => None,
+            })
             .collect();
         EvalSummary { diagnostics: e.diagnostics, values, curve_hints }
     });
