@@ -10,10 +10,15 @@ struct Run {
     messages: Vec<String>,
 }
 
-fn run(src: &str) -> Run {
+/// Checks (asserting no static error) and evaluates.
+fn evaluated(src: &str) -> kelp_evaluator::Evaluation {
     let c = check(src);
     assert!(!c.has_errors(), "static errors: {:?}", c.diagnostics);
-    let e = evaluate(&c, src, &Mode::Check);
+    evaluate(&c, src, &Mode::Check)
+}
+
+fn run(src: &str) -> Run {
+    let e = evaluated(src);
     Run {
         codes: e.diagnostics.iter().map(|d| d.code).collect(),
         passed: e.expectations.iter().map(|x| x.passed).collect(),
@@ -106,8 +111,7 @@ fn theta_claims_end_to_end() {
 #[test]
 fn theta_refuses_bad_matrices_at_the_argument() {
     let src = "let bad = theta([[1i, 2i], [2i, 1i]], [0, 0])\nlet far = theta([[1i]], [300i])\n";
-    let c = check(src);
-    let e = evaluate(&c, src, &Mode::Check);
+    let e = evaluated(src);
     let codes: Vec<Code> = e.diagnostics.iter().map(|d| d.code).collect();
     assert_eq!(codes, vec![Code::NotRiemannMatrix, Code::EvalFailed]);
     // K604 points at the matrix argument, and names the failing eigenvalue.
@@ -152,8 +156,7 @@ fn j_invariants_are_exact() {
 #[test]
 fn curves_without_a_genus_say_why() {
     let src = "curve pair: y^2 = x^4\ncurve twice: (x^2 + y^2 - 1)^2\nlet a = genus(pair)\nlet b = genus(twice)\nlet c = singular_points(twice)\n";
-    let c = check(src);
-    let e = evaluate(&c, src, &Mode::Check);
+    let e = evaluated(src);
     let errors: Vec<(Code, String)> =
         e.diagnostics.iter().filter(|d| d.is_error()).map(|d| (d.code, d.message.clone())).collect();
     assert_eq!(errors.len(), 3, "{errors:?}");
