@@ -8,6 +8,7 @@ pub mod eval;
 pub mod json;
 pub mod linalg;
 pub mod num;
+pub mod periods;
 pub mod theta;
 mod theta_fn;
 pub mod value;

@@ -1,0 +1,341 @@
+//! Periods and a Riemann matrix of y^m = f(x), f square-free of degree n.
+//!
+//! The method of Molin and Neurohr (*Computing period matrices and the Abel–Jacobi map of
+//! superelliptic curves*, Math. Comp. 2019), rebuilt here:
+//! - branch points: the roots of f, with a-posteriori inclusion radii;
+//! - cycles: for each edge [a, b] of a spanning tree of the branch points and each sheet
+//!   s = 0..m-2, go from a to b on the branch zeta^s y_e and come back on zeta^(s+1) y_e,
+//!   where y_e is one continuous branch of y on the open segment; (n-1)(m-1) cycles that
+//!   generate homology;
+//! - intersections: near a finite branch point y is a local coordinate, and each lift of an
+//!   edge leaves it along a ray of angle arg(zeta^s L) in the y-plane (L the leading
+//!   coefficient of y_e there). Pushing one cycle off to its left and counting signed
+//!   crossings with the other at the shared branch points gives the intersection number;
+//! - periods: integral of x^i dx / y^j along each edge by a Gauss–Jacobi rule for the weight
+//!   (1 - t^2)^(-j/m), sized by its Bernstein-ellipse error bound;
+//! - a symplectic basis by integer symplectic reduction, then tau = A^-1 B.
+
+use super::quad;
+use super::symplectic::symplectic_basis;
+use super::tree::{edge_coordinate, spanning_tree, Edge};
+use crate::algebra::roots::{complex_roots, inclusion_radius};
+use crate::algebra::upoly::UPoly;
+use nalgebra::DMatrix;
+use num_complex::Complex64 as C64;
+use std::f64::consts::PI;
+
+/// A holomorphic differential x^power dx / y^j.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct Differential {
+    pub power: u32,
+    pub j: u32,
+}
+
+impl Differential {
+    pub fn show(&self) -> String {
+        let x = match self.power {
+            0 => String::new(),
+            1 => "x ".into(),
+            p => format!("x^{p} "),
+        };
+        let y = if self.j == 1 { "y".to_string() } else { format!("y^{}", self.j) };
+        format!("{x}dx/{y}")
+    }
+}
+
+/// Periods of the curve in a symplectic basis, with what went into them.
+#[derive(Clone, Debug)]
+pub struct Periods {
+    pub genus: usize,
+    pub differentials: Vec<Differential>,
+    /// A[l][k] = integral of differential l over a_k; B likewise over b_k.
+    pub a: DMatrix<C64>,
+    pub b: DMatrix<C64>,
+    /// Bounds on the entries' errors.
+    pub a_error: f64,
+    pub b_error: f64,
+    pub branch_points: Vec<C64>,
+    pub edges: usize,
+    /// Quadrature nodes used, summed over edges and exponents j.
+    pub nodes: usize,
+    pub largest_rule: usize,
+}
+
+#[derive(Clone, Debug, PartialEq)]
+pub enum PeriodError {
+    /// The mathematics is outside what is built (said plainly to the user).
+    Unsupported(String),
+    /// No Riemann matrix exists (genus 0).
+    NoMatrix(String),
+    /// The computation could not reach the accuracy asked for.
+    Accuracy(String),
+}
+
+/// The genus (n - 1)(m - 1) - gcd(m, n) + 1 all over 2 (Riemann–Hurwitz, f square-free).
+pub fn superelliptic_genus(m: u32, n: u32) -> u32 {
+    ((m - 1) * (n - 1) + 1 - num_integer::gcd(m, n)) / 2
+}
+
+/// x^(i-1) dx / y^j with 1 <= j <= m-1, i >= 1, j n - m i - gcd(m, n) >= 0.
+pub fn holomorphic_basis(m: u32, n: u32) -> Vec<Differential> {
+    let d = num_integer::gcd(m, n) as i64;
+    let mut out = vec![];
+    for j in 1..m {
+        let mut i = 1i64;
+        while j as i64 * n as i64 - m as i64 * i - d >= 0 {
+            out.push(Differential { power: (i - 1) as u32, j });
+            i += 1;
+        }
+    }
+    out
+}
+
+/// Continuous logarithm of (t - u) for t on [-1, 1] and u off it: log(-u) + log(1 - t/u),
+/// whose cut (t on the ray from u away from 0) misses every Bernstein ellipse that
+/// excludes u.
+fn log_branch(t: C64, u: C64) -> C64 {
+    (-u).ln() + (C64::new(1.0, 0.0) - t / u).ln()
+}
+
+struct EdgeData {
+    a: usize,
+    b: usize,
+    /// Arguments of y_e's leading coefficient at a and at b.
+    arg_a: f64,
+    arg_b: f64,
+    /// integral over [a, b] of each differential against y_e, and its error bound.
+    integrals: Vec<C64>,
+    errors: Vec<f64>,
+}
+
+pub fn periods(m: u32, f: &UPoly, tol: f64) -> Result<Periods, PeriodError> {
+    let n = f.degree().unwrap_or(0) as u32;
+    if m < 2 || n < 1 {
+        return Err(PeriodError::NoMatrix("y^m = f(x) needs m >= 2 and f of degree at least 1".into()));
+    }
+    if f.gcd(&f.derivative()).degree() != Some(0) {
+        return Err(PeriodError::Unsupported(format!(
+            "f = {} has a repeated root, so the curve is singular there; Riemann matrices of such curves are not supported yet",
+            f.show("x")
+        )));
+    }
+    let g = superelliptic_genus(m, n) as usize;
+    if g == 0 {
+        return Err(PeriodError::NoMatrix("the curve has genus 0, so it has no Riemann matrix".into()));
+    }
+    let diffs = holomorphic_basis(m, n);
+    if diffs.len() != g {
+        return Err(PeriodError::Accuracy(format!(
+            "internal: {} holomorphic differentials for genus {g}",
+            diffs.len()
+        )));
+    }
+    let roots = complex_roots(f);
+    let scale = roots.iter().map(|r| r.norm()).fold(1.0, f64::max);
+    let radius = roots.iter().map(|&r| inclusion_radius(f, r)).fold(0.0, f64::max);
+    let min_gap = (0..roots.len())
+        .flat_map(|i| (i + 1..roots.len()).map(move |j| (i, j)))
+        .map(|(i, j)| (roots[i] - roots[j]).norm())
+        .fold(f64::INFINITY, f64::min);
+    if !(radius <= 1e-11 * scale) || min_gap < 1e4 * radius.max(1e-300) {
+        return Err(PeriodError::Accuracy(format!(
+            "the branch points are known only to {radius:.1e} in double precision while the closest two are {min_gap:.1e} apart; higher precision is not supported yet"
+        )));
+    }
+    let tree = spanning_tree(&roots)
+        .ok_or_else(|| PeriodError::Accuracy("no spanning tree of the branch points was found".into()))?;
+    let lead = kelp_lang::number::to_f64(&f.lead());
+    let mut nodes = 0;
+    let mut largest_rule = 0;
+    let mut edges = vec![];
+    for e in &tree {
+        let (d, used, big) = edge_integrals(m, lead, &roots, e, &diffs, tol)?;
+        nodes += used;
+        largest_rule = largest_rule.max(big);
+        edges.push(d);
+    }
+
+    // Cycles (edge, sheet) and their passes through branch points: (vertex, ray in, ray out),
+    // a ray being (edge, end, sheet) with its angle.
+    let mm = m as usize;
+    let ray_angle = |e: &EdgeData, end: usize, s: usize| -> f64 {
+        let base = if end == 0 { e.arg_a } else { e.arg_b };
+        (base + 2.0 * PI * s as f64 / m as f64).rem_euclid(2.0 * PI)
+    };
+    type Ray = ((usize, usize, usize), f64);
+    let mut passes: Vec<Vec<(usize, Ray, Ray)>> = vec![];
+    for (ei, e) in edges.iter().enumerate() {
+        for s in 0..mm - 1 {
+            let ray = |end: usize, sh: usize| ((ei, end, sh % mm), ray_angle(e, end, sh % mm));
+            passes.push(vec![(e.b, ray(1, s), ray(1, s + 1)), (e.a, ray(0, s + 1), ray(0, s))]);
+        }
+    }
+    let nc = passes.len();
+    let in_sector = |p_in: &Ray, p_out: &Ray, r: &Ray| -> bool {
+        if r.0 == p_in.0 || r.0 == p_out.0 {
+            return false;
+        }
+        let width = (p_in.1 - p_out.1).rem_euclid(2.0 * PI);
+        let at = (p_in.1 - r.1).rem_euclid(2.0 * PI);
+        at > 0.0 && at < width
+    };
+    let mut k = vec![vec![0i64; nc]; nc];
+    for c1 in 0..nc {
+        for c2 in 0..nc {
+            if c1 == c2 {
+                continue;
+            }
+            let mut s = 0;
+            for (v1, i1, o1) in &passes[c1] {
+                for (v2, i2, o2) in &passes[c2] {
+                    if v1 == v2 {
+                        s += i64::from(in_sector(i1, o1, o2)) - i64::from(in_sector(i1, o1, i2));
+                    }
+                }
+            }
+            k[c1][c2] = s;
+        }
+    }
+    let basis = symplectic_basis(&k).map_err(|e| PeriodError::Accuracy(format!("homology: {e}")))?;
+    if basis.a.len() != g {
+        return Err(PeriodError::Accuracy(format!("homology: found {} symplectic pairs for genus {g}", basis.a.len())));
+    }
+
+    // Period of differential l over cycle (e, s): zeta^(-s j) (1 - zeta^(-j)) I_e,l.
+    let zeta = |p: i64| C64::from_polar(1.0, 2.0 * PI * p as f64 / m as f64);
+    let mut pm = DMatrix::<C64>::zeros(g, nc);
+    let mut pe = DMatrix::<f64>::zeros(g, nc);
+    for (ei, e) in edges.iter().enumerate() {
+        for s in 0..mm - 1 {
+            let c = ei * (mm - 1) + s;
+            for (l, d) in diffs.iter().enumerate() {
+                let j = d.j as i64;
+                let factor = zeta(-(s as i64) * j) * (C64::new(1.0, 0.0) - zeta(-j));
+                pm[(l, c)] = factor * e.integrals[l];
+                pe[(l, c)] = factor.norm() * e.errors[l];
+            }
+        }
+    }
+    let combine = |vs: &[Vec<i64>]| -> (DMatrix<C64>, f64) {
+        let mut out = DMatrix::<C64>::zeros(g, g);
+        let mut err: f64 = 0.0;
+        for (kk, v) in vs.iter().enumerate() {
+            for l in 0..g {
+                let mut s = C64::new(0.0, 0.0);
+                let mut e = 0.0;
+                for (c, &coef) in v.iter().enumerate() {
+                    if coef != 0 {
+                        s += pm[(l, c)] * coef as f64;
+                        e += pe[(l, c)] * coef.abs() as f64 + f64::EPSILON * (pm[(l, c)] * coef as f64).norm();
+                    }
+                }
+                out[(l, kk)] = s;
+                err = err.max(e);
+            }
+        }
+        (out, err)
+    };
+    let (a, a_error) = combine(&basis.a);
+    let (b, b_error) = combine(&basis.b);
+    Ok(Periods {
+        genus: g,
+        differentials: diffs,
+        a,
+        b,
+        a_error,
+        b_error,
+        branch_points: roots,
+        edges: edges.len(),
+        nodes,
+        largest_rule,
+    })
+}
+
+/// Integrals of every differential along one edge against the edge's branch y_e, with the
+/// leading-coefficient arguments of y_e at both ends. Returns (data, nodes used, largest rule).
+fn edge_integrals(
+    m: u32,
+    lead: f64,
+    roots: &[C64],
+    e: &Edge,
+    diffs: &[Differential],
+    tol: f64,
+) -> Result<(EdgeData, usize, usize), PeriodError> {
+    let (pa, pb) = (roots[e.a], roots[e.b]);
+    let half = (pb - pa) / 2.0;
+    let mid = (pa + pb) / 2.0;
+    let n = roots.len();
+    let us: Vec<C64> = (0..n).filter(|&k| k != e.a && k != e.b).map(|k| edge_coordinate(pa, pb, roots[k])).collect();
+    let mf = m as f64;
+    // y_e = Ce (1 - t^2)^(1/m) prod (t - u_k)^(1/m), Ce^m = -lead half^n.
+    let log_ce = (C64::new(-lead, 0.0).ln() + n as f64 * half.ln()) / mf;
+    let sum_log = |t: C64| -> C64 { us.iter().map(|&u| log_branch(t, u)).sum() };
+    let arg_a = log_ce.im + sum_log(C64::new(-1.0, 0.0)).im / mf;
+    let arg_b = log_ce.im + sum_log(C64::new(1.0, 0.0)).im / mf;
+
+    let mut integrals = vec![C64::new(0.0, 0.0); diffs.len()];
+    let mut errors = vec![0.0; diffs.len()];
+    let mut used = 0;
+    let mut largest = 0;
+    let rho_max = e.rho.min(40.0);
+    let max_j = diffs.iter().map(|d| d.j).max().unwrap_or(0);
+    for j in 1..=max_j {
+        let which: Vec<usize> = (0..diffs.len()).filter(|&l| diffs[l].j == j).collect();
+        let Some(max_pow) = which.iter().map(|&l| diffs[l].power).max() else { continue };
+        let jf = j as f64;
+        // |g(t)| = |half| |x(t)|^i |Ce|^-j prod |t - u_k|^(-j/m), largest over the powers i.
+        let abs_g = |t: C64| -> f64 {
+            let x = (mid + half * t).norm();
+            let logabs: f64 = us.iter().map(|&u| (t - u).norm().ln()).sum();
+            half.norm() * x.max(1.0).powi(max_pow as i32) * (-jf * (log_ce.re + logabs / mf)).exp()
+        };
+        let alpha = -jf / mf;
+        let mu0 = quad::mu0(alpha);
+        let m0 = (0..=32).map(|k| abs_g(C64::new(-1.0 + k as f64 / 16.0, 0.0))).fold(0.0, f64::max);
+        let target = 0.1 * tol * mu0 * m0;
+        let mut best: Option<(usize, f64)> = None;
+        for frac in [0.3, 0.5, 0.7, 0.85, 0.95] {
+            let rho = 1.0 + (rho_max - 1.0) * frac;
+            let mm =
+                1.2 * (0..96).map(|k| abs_g(quad::ellipse_point(rho, 2.0 * PI * k as f64 / 96.0))).fold(0.0, f64::max);
+            if let Some(size) = quad::size_for(mu0, mm, rho, target) {
+                let bound = quad::error_bound(mu0, mm, rho, size);
+                if best.is_none_or(|(s, _)| size < s) {
+                    best = Some((size, bound));
+                }
+            }
+        }
+        let Some((size, bound)) = best else {
+            return Err(PeriodError::Accuracy(format!(
+                "branch points {:.4} and {:.4}: the edge passes too close to another branch point for {} quadrature nodes at {tol:.0e}",
+                pa,
+                pb,
+                quad::SIZES[quad::SIZES.len() - 1]
+            )));
+        };
+        used += size;
+        largest = largest.max(size);
+        let rule = quad::rule(j, m, size);
+        let mut magnitude = vec![0.0; which.len()];
+        for (t, w) in rule.nodes.iter().zip(&rule.weights) {
+            let t = C64::new(*t, 0.0);
+            let x = mid + half * t;
+            let base = half * *w * (-jf * (log_ce + sum_log(t) / mf)).exp();
+            let mut xp = C64::new(1.0, 0.0);
+            let mut pow = 0;
+            for (slot, &l) in which.iter().enumerate() {
+                while pow < diffs[l].power {
+                    xp *= x;
+                    pow += 1;
+                }
+                let term = base * xp;
+                integrals[l] += term;
+                magnitude[slot] += term.norm();
+            }
+        }
+        for (slot, &l) in which.iter().enumerate() {
+            errors[l] = bound + 8.0 * size as f64 * f64::EPSILON * magnitude[slot];
+        }
+    }
+    Ok((EdgeData { a: e.a, b: e.b, arg_a, arg_b, integrals, errors }, used, largest))
+}
