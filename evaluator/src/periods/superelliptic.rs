@@ -18,7 +18,7 @@
 use super::quad;
 use super::symplectic::symplectic_basis;
 use super::tree::{edge_coordinate, spanning_tree, Edge};
-use crate::algebra::roots::{complex_roots, inclusion_radius};
+use crate::algebra::roots::refined_roots;
 use crate::algebra::upoly::UPoly;
 use nalgebra::DMatrix;
 use num_complex::Complex64 as C64;
@@ -130,9 +130,10 @@ pub fn periods(m: u32, f: &UPoly, tol: f64) -> Result<Periods, PeriodError> {
             diffs.len()
         )));
     }
-    let roots = complex_roots(f);
+    let refined = refined_roots(f);
+    let roots: Vec<C64> = refined.iter().map(|r| r.0).collect();
     let scale = roots.iter().map(|r| r.norm()).fold(1.0, f64::max);
-    let radius = roots.iter().map(|&r| inclusion_radius(f, r)).fold(0.0, f64::max);
+    let radius = refined.iter().map(|r| r.1).fold(0.0, f64::max);
     let min_gap = (0..roots.len())
         .flat_map(|i| (i + 1..roots.len()).map(move |j| (i, j)))
         .map(|(i, j)| (roots[i] - roots[j]).norm())
@@ -292,7 +293,7 @@ fn edge_integrals(
         let alpha = -jf / mf;
         let mu0 = quad::mu0(alpha);
         let m0 = (0..=32).map(|k| abs_g(C64::new(-1.0 + k as f64 / 16.0, 0.0))).fold(0.0, f64::max);
-        let target = 0.1 * tol * mu0 * m0;
+        let target = (1e-3 * tol).max(1e-16) * mu0 * m0;
         let mut best: Option<(usize, f64)> = None;
         for frac in [0.3, 0.5, 0.7, 0.85, 0.95] {
             let rho = 1.0 + (rho_max - 1.0) * frac;
@@ -334,7 +335,8 @@ fn edge_integrals(
             }
         }
         for (slot, &l) in which.iter().enumerate() {
-            errors[l] = bound + 8.0 * size as f64 * f64::EPSILON * magnitude[slot];
+            // Rounding: each term carries about n + a few ulps (the log sum), the sum N more.
+            errors[l] = bound + 2.0 * (size + n) as f64 * f64::EPSILON * magnitude[slot];
         }
     }
     Ok((EdgeData { a: e.a, b: e.b, arg_a, arg_b, integrals, errors }, used, largest))
