@@ -33,3 +33,148 @@ fn legendre_curves_j_of_tau() {
         assert!(r.error < 1e-11, "error estimate {:.1e}", r.error);
     }
 }
+
+fn poly(c: &[i64]) -> UPoly {
+    UPoly::from_ints(c)
+}
+
+// Genus-1 curves with extra automorphisms, through the m = 3 and m = 4 sheet structures:
+// y^3 = x^3 - 1 (the Fermat cubic) and y^3 = x^2 + 1 have j = 0; y^4 = x^2 - 1 and
+// y^4 = 3x^2 + x - 5 have j = 1728 (an automorphism of order 3, resp. 4, fixing a point;
+// classical, Silverman III.10.1).
+#[test]
+fn superelliptic_genus_one_j_values() {
+    for (m, f, want) in [
+        (3, poly(&[-1, 0, 0, 1]), 0.0),
+        (3, poly(&[1, 0, 1]), 0.0),
+        (3, poly(&[2, -3, 0, 5]), 0.0),
+        (4, poly(&[-1, 0, 1]), 1728.0),
+        (4, poly(&[-5, 1, 3]), 1728.0),
+    ] {
+        let r = tau_of(m, &f);
+        assert_eq!(r.tau.nrows(), 1);
+        let (j, e) = j_of_tau(r.tau[(0, 0)], r.error).unwrap();
+        assert!((j - want).norm() < e.max(1e-8), "y^{m} = {}: j = {j}", f.show("x"));
+    }
+}
+
+/// Whether D Pi = Pi M for an integer unimodular M, Pi = [A | B]: the period lattice is
+/// invariant under the linear map D of an automorphism acting on the differentials.
+fn lattice_invariant(r: &RiemannMatrix, d: &[C64]) -> bool {
+    let g = r.periods.genus;
+    let pi = DMatrix::from_fn(g, 2 * g, |l, k| if k < g { r.periods.a[(l, k)] } else { r.periods.b[(l, k - g)] });
+    let real =
+        |m: &DMatrix<C64>| DMatrix::from_fn(2 * g, 2 * g, |i, k| if i < g { m[(i, k)].re } else { m[(i - g, k)].im });
+    let dpi = DMatrix::from_fn(g, 2 * g, |l, k| d[l] * pi[(l, k)]);
+    let Some(inv) = real(&pi).try_inverse() else { return false };
+    let m = inv * real(&dpi);
+    let off = m.iter().map(|v| (v - v.round()).abs()).fold(0.0, f64::max);
+    let det = m.map(|v| v.round()).determinant();
+    off < 1e-8 && (det.abs() - 1.0).abs() < 1e-9
+}
+
+use nalgebra::DMatrix;
+use num_complex::Complex64 as C64;
+
+// y^3 = x^4 - 1 (genus 3) has the automorphism (x, y) -> (i x, y), which maps the tree of
+// branch points to a different set of edges; it multiplies x^p dx / y^j by i^(p+1), and
+// its action on homology is an integer unimodular matrix (common practice: an automorphism
+// acts on H_1 by an integral symplectic map). Same for y^2 = x^5 - x with (x, y) ->
+// (i x, e^{i pi/4} y), y^5 = x^3 - 1 with (x, y) -> (w x, y), w^3 = 1, and y^4 = x^7 + x with
+// (x, y) -> (-x, e^{i pi/4} y).
+#[test]
+fn automorphisms_preserve_the_period_lattice() {
+    use std::f64::consts::PI;
+    let cases: Vec<(u32, UPoly, Box<dyn Fn(&superelliptic::Differential) -> C64>)> = vec![
+        (3, poly(&[-1, 0, 0, 0, 1]), Box::new(|d| C64::new(0.0, 1.0).powu(d.power + 1))),
+        (
+            2,
+            poly(&[0, -1, 0, 0, 0, 1]),
+            Box::new(|d| C64::new(0.0, 1.0).powu(d.power + 1) * C64::from_polar(1.0, -PI / 4.0)),
+        ),
+        (5, poly(&[-1, 0, 0, 1]), Box::new(|d| C64::from_polar(1.0, 2.0 * PI / 3.0).powu(d.power + 1))),
+        (
+            4,
+            poly(&[0, 1, 0, 0, 0, 0, 0, 1]),
+            Box::new(|d| {
+                // y^4 = x^7 + x: (x, y) -> (-x, e^{i pi/4} y).
+                C64::new(-1.0, 0.0).powu(d.power + 1) * C64::from_polar(1.0, -PI / 4.0 * d.j as f64)
+            }),
+        ),
+    ];
+    for (m, f, act) in cases {
+        let r = tau_of(m, &f);
+        let d: Vec<C64> = r.periods.differentials.iter().map(|d| act(d)).collect();
+        assert!(lattice_invariant(&r, &d), "y^{m} = {}", f.show("x"));
+        // And a map that is not an automorphism must fail the same test.
+        let wrong: Vec<C64> =
+            d.iter().enumerate().map(|(k, v)| if k == 0 { v * C64::new(0.0, 1.0) } else { *v }).collect();
+        assert!(!lattice_invariant(&r, &wrong) || d.len() == 1, "y^{m} = {}: the test cannot fail", f.show("x"));
+    }
+}
+
+// x -> a x + b, y -> c y changes f to f(a x + b) / c^m: the same curve, so the theta
+// fingerprint is unchanged (definition of the invariant).
+#[test]
+fn affine_changes_keep_the_fingerprint() {
+    use super::fingerprint::{fingerprint_distance, theta_fingerprint};
+    // y^2 = x^5 + 3x^2 - x + 2 and y^3 = x^4 + x + 1 (invented), then with x -> (2x - 1)/3,
+    // y -> (1/2) y, written out exactly.
+    for (m, f) in [(2u32, poly(&[2, -1, 3, 0, 0, 1])), (3, poly(&[1, 1, 0, 0, 1]))] {
+        let sub = UPoly::new(vec![q(-1, 3), q(2, 3)]);
+        let mut g = UPoly::zero();
+        for c in f.0.iter().rev() {
+            g = g.mul(&sub).add(&UPoly::new(vec![c.clone()]));
+        }
+        let c = q(1, 2);
+        let mut cm = q(1, 1);
+        for _ in 0..m {
+            cm *= &c;
+        }
+        let g = g.scale(&(q(1, 1) / cm));
+        let (fa, ea) = theta_fingerprint(&tau_of(m, &f).tau).unwrap();
+        let (fb, eb) = theta_fingerprint(&tau_of(m, &g).tau).unwrap();
+        let d = fingerprint_distance(&fa, &fb);
+        assert!(d < 1e-9 + ea + eb, "y^{m} = {}: {d:.2e}", f.show("x"));
+        // A different curve does not share it.
+        let (fc, _) = theta_fingerprint(&tau_of(m, &f.add(&poly(&[1]))).tau).unwrap();
+        assert!(fingerprint_distance(&fa, &fc) > 1e-4);
+    }
+}
+
+// Many random-looking superelliptic curves: the Riemann bilinear relations (symmetry, Im tau
+// positive definite) hold within the estimate; a wrong intersection matrix breaks them.
+#[test]
+fn bilinear_relations_hold_across_shapes() {
+    let fs = [
+        (2, poly(&[3, -1, 4, 1, -5, 9, 2])),
+        (3, poly(&[6, -5, 3, 5, 8])),
+        (3, poly(&[-7, 9, 3, -2, 3, 8, 4])),
+        (4, poly(&[2, 7, -1, 8, 2])),
+        (5, poly(&[1, -3, 2, 1])),
+        (6, poly(&[1, 0, -2, 3])),
+        (7, poly(&[-2, 5, 1])),
+        (2, poly(&[1, -2, 3, -4, 5, -6, 7, -8, 9, -10, 11, -12, 13])),
+    ];
+    for (m, f) in fs {
+        let p = periods(m, &f, 1e-12).unwrap();
+        let n = f.degree().unwrap() as u32;
+        assert_eq!(p.genus as u32, superelliptic::superelliptic_genus(m, n));
+        let r = riemann_matrix(p, false).unwrap();
+        assert!(r.symmetry_defect < 1e-10, "y^{m} = {}: {:.1e}", f.show("x"), r.symmetry_defect);
+        assert!(r.min_eig_im > 1e-3, "y^{m} = {}", f.show("x"));
+        assert!(r.error < 1e-10, "y^{m} = {}: {:.1e}", f.show("x"), r.error);
+    }
+}
+
+// The count of the differentials equals the Riemann–Hurwitz genus for every small (m, n)
+// (the index set is from memory, so this is its check).
+#[test]
+fn differential_count_is_the_genus() {
+    for m in 2..9 {
+        for n in 1..14 {
+            let g = superelliptic::superelliptic_genus(m, n) as usize;
+            assert_eq!(superelliptic::holomorphic_basis(m, n).len(), g, "m = {m}, n = {n}");
+        }
+    }
+}
