@@ -111,6 +111,7 @@ impl Evaluator<'_> {
                     name: name.name.clone(),
                     equation: eq.clone(),
                     facts: Default::default(),
+                    periods: Default::default(),
                 })));
                 self.define(name, v);
             }
@@ -389,7 +390,15 @@ impl Evaluator<'_> {
                 Ok(Valued { value: Value::Bool(r.holds()), error_bound: 0.0, reason: Some(r.reason()) })
             }
             "theta" => self.theta_call(span, args),
-            "smooth" | "genus" | "singular_points" | "j_invariant" => {
+            "tau" => self.tau_call(span, args),
+            "j_invariant" => match first(self)? {
+                Valued { value: Value::Curve(c), .. } => self.curve_fact("j_invariant", &c, arg_span),
+                Valued { value: Value::Matrix(m), error_bound, .. } => {
+                    crate::tau_fn::j_of_matrix(&m, error_bound, arg_span)
+                }
+                _ => Err(fail(Code::WrongKind, arg_span, "`j_invariant` needs a curve or a 1 x 1 Riemann matrix")),
+            },
+            "smooth" | "genus" | "singular_points" => {
                 let Value::Curve(c) = first(self)?.value else {
                     return Err(fail(Code::WrongKind, arg_span, format!("`{}` needs a curve", func.name)));
                 };
@@ -402,10 +411,7 @@ impl Evaluator<'_> {
 
 /// What is missing for a function kelp does not compute yet.
 fn not_supported(name: &str) -> String {
-    let why = match name {
-        "tau" => "Riemann matrices of curves are not computed yet",
-        _ => "KP waves are not computed yet",
-    };
+    let why = "KP waves are not computed yet";
     format!("`{name}` is not supported yet: {why}; kelp gives no value rather than a made-up one")
 }
 

@@ -9,6 +9,7 @@ pub mod json;
 pub mod linalg;
 pub mod num;
 pub mod periods;
+mod tau_fn;
 pub mod theta;
 mod theta_fn;
 pub mod value;

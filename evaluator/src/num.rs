@@ -157,6 +157,9 @@ impl Num {
 pub fn fmt_f64(x: f64) -> String {
     if x == x.trunc() && x.abs() < 1e15 {
         format!("{x:.1}")
+    } else if x.abs() < 1e-4 || x.abs() >= 1e15 {
+        // Shortest round-trip digits in scientific form, not forty zeros.
+        format!("{x:e}")
     } else {
         format!("{x}")
     }

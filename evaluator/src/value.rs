@@ -11,6 +11,8 @@ pub struct CurveValue {
     pub equation: CurveEquation,
     /// Singular points and what follows from them, computed once on first use.
     pub facts: std::cell::OnceCell<Rc<crate::algebra::curve::CurveFacts>>,
+    /// Periods for `tau`, computed on first use (at the file's one `accuracy`).
+    pub periods: std::cell::OnceCell<Result<Rc<crate::periods::Periods>, crate::periods::PeriodError>>,
 }
 
 impl CurveValue {

@@ -18,6 +18,10 @@ pub enum ParamKind {
     Point,
     /// Characteristics `[a, b]`, a 2 x g matrix.
     Characteristic,
+    /// `true` or `false`.
+    Bool,
+    /// A curve, or a 1 x 1 Riemann matrix (for `j_invariant`).
+    CurveOrMatrix,
 }
 
 #[derive(Clone, Copy, Debug)]
@@ -110,21 +114,21 @@ pub const BUILTINS: &[Builtin] = &[
     },
     Builtin {
         name: "j_invariant",
-        positional: &[p("curve", K::Curve)],
+        positional: &[p("curve", K::CurveOrMatrix)],
         keywords: &[],
         region: RegionUse::None,
         yields: Yields::Number,
-        signature: "j_invariant(C)",
-        summary: "Exact j-invariant (a rational) of a genus-1 curve.",
+        signature: "j_invariant(C) or j_invariant(T)",
+        summary: "Exact j-invariant (a rational) of a genus-1 curve, or j(tau) of a 1 x 1 Riemann matrix with an error bound.",
     },
     Builtin {
         name: "tau",
         positional: &[p("curve", K::Curve)],
-        keywords: &[],
+        keywords: &[opt("reduce", K::Bool)],
         region: RegionUse::None,
         yields: Yields::Matrix,
-        signature: "tau(C)",
-        summary: "A Riemann matrix of the curve (symmetric, positive-definite imaginary part) with an error estimate.",
+        signature: "tau(C, reduce = true)",
+        summary: "A Riemann matrix of the curve (symmetric, positive-definite imaginary part) with an error estimate; Siegel-reduced unless `reduce = false`. Curves y^m = f(x) so far.",
     },
     Builtin {
         name: "is_riemann",

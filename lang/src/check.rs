@@ -1035,6 +1035,8 @@ fn accepts(p: ParamKind, k: Kind) -> bool {
         ParamKind::VectorList => matches!(k, Matrix(_) | Vector(Some(0))),
         ParamKind::Collection => matches!(k, Vector(_) | Matrix(_) | List),
         ParamKind::Point => matches!(k, Point { .. }),
+        ParamKind::Bool => k == Bool,
+        ParamKind::CurveOrMatrix => matches!(k, Curve | Matrix(_)),
     }
 }
 
@@ -1049,6 +1051,8 @@ fn describe_param(p: ParamKind) -> &'static str {
         ParamKind::Collection => "a list or vector",
         ParamKind::Point => "a point `(x, y)` or `(x : y : z)`",
         ParamKind::Characteristic => "characteristics `[a, b]`",
+        ParamKind::Bool => "true or false",
+        ParamKind::CurveOrMatrix => "a curve or a 1 x 1 matrix",
     }
 }
 

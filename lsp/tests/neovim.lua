@@ -32,8 +32,8 @@ for _, d in ipairs(vim.diagnostic.get(buf)) do
   table.insert(result.diagnostics, { line = d.lnum, code = code_of(d), message = d.message })
 end
 
--- Hover on the name `th` of `let th = ...` (line 3, 0-based).
-local params = { textDocument = { uri = vim.uri_from_bufnr(buf) }, position = { line = 3, character = 5 } }
+-- Hover on the name `tw` of `let tw = tau(shell)` (line 4, 0-based).
+local params = { textDocument = { uri = vim.uri_from_bufnr(buf) }, position = { line = 4, character = 5 } }
 local replies = vim.lsp.buf_request_sync(buf, "textDocument/hover", params, 10000) or {}
 for _, r in pairs(replies) do
   if r.result and r.result.contents then

@@ -39,23 +39,31 @@ fn norm_1(m: &DMatrix<C64>) -> f64 {
     norm_inf(&m.transpose())
 }
 
+/// A^-1 B and a bound on its entries' errors: d(A^-1 B) = A^-1 (dB - dA tau), an entry of
+/// dB - dA tau is at most b_error + a_error ||tau||_1, and a row of A^-1 sums to at most
+/// ||A^-1||_inf; plus rounding in the solve.
+fn quotient(a: &DMatrix<C64>, b: &DMatrix<C64>, a_error: f64, b_error: f64) -> Option<(DMatrix<C64>, f64)> {
+    let ainv = a.clone().try_inverse()?;
+    let raw = &ainv * b;
+    let ni = norm_inf(&ainv);
+    let g = a.nrows() as f64;
+    Some((raw.clone(), ni * (b_error + a_error * norm_1(&raw)) + 4.0 * g * f64::EPSILON * ni * norm_inf(b)))
+}
+
+/// Largest |m_ij - m_ji|.
+fn asymmetry(m: &DMatrix<C64>) -> f64 {
+    let g = m.nrows();
+    (0..g).flat_map(|i| (0..g).map(move |j| (i, j))).map(|(i, j)| (m[(i, j)] - m[(j, i)]).norm()).fold(0.0, f64::max)
+}
+
 /// tau = A^-1 B from periods, symmetrised, checked, and Siegel-reduced when asked.
 pub fn riemann_matrix(p: Periods, reduce: bool) -> Result<RiemannMatrix, PeriodError> {
     let g = p.genus;
-    let ainv =
-        p.a.clone().try_inverse().ok_or_else(|| PeriodError::Accuracy("the a-period matrix is singular".into()))?;
-    let raw = &ainv * &p.b;
-    // d(A^-1 B) = A^-1 (dB - dA tau): an entry of dB - dA tau is at most
-    // b_error + a_error ||tau||_1, and a row of A^-1 sums to at most ||A^-1||_inf.
-    let gf = g as f64;
-    let ni = norm_inf(&ainv);
-    let mut error = ni * (p.b_error + p.a_error * norm_1(&raw)) + 4.0 * gf * f64::EPSILON * ni * norm_inf(&p.b);
-    let symmetry_defect = (0..g)
-        .flat_map(|i| (0..g).map(move |j| (i, j)))
-        .map(|(i, j)| (raw[(i, j)] - raw[(j, i)]).norm())
-        .fold(0.0, f64::max);
+    let (raw, error) = quotient(&p.a, &p.b, p.a_error, p.b_error)
+        .ok_or_else(|| PeriodError::Accuracy("the a-period matrix is singular".into()))?;
+    let symmetry_defect = asymmetry(&raw);
     let mut tau = (&raw + raw.transpose()) * C64::new(0.5, 0.0);
-    error = error.max(symmetry_defect);
+    let mut error = error.max(symmetry_defect);
     let min_eig = |t: &DMatrix<C64>| t.map(|v| v.im).symmetric_eigenvalues().min();
     let mut min_eig_im = min_eig(&tau);
     if !(min_eig_im > error) {
@@ -66,13 +74,25 @@ pub fn riemann_matrix(p: Periods, reduce: bool) -> Result<RiemannMatrix, PeriodE
     let mut reduced = None;
     if reduce {
         if let Ok(s) = crate::theta::siegel::siegel_reduce(&tau) {
-            // tau' = (A tau + B)(C tau + D)^-1 moves errors by X^T . X with X = (C tau + D)^-1,
-            // and |(X^T E X)_ij| <= max|E| ||X||_1^2.
+            // Gamma = [[a, b], [c, d]] changes the cycles: the new periods are
+            // A' = A d^T + B c^T and B' = A b^T + B a^T (from tau' = (c tau + d)^-T (a tau + b)^T
+            // and A tau = B), so the
+            // reduced matrix is A'^-1 B' with errors propagated through the new, usually
+            // better conditioned, A'.
             let blk = |r: usize, c: usize| s.gamma.view((r * g, c * g), (g, g)).map(|v| C64::new(v as f64, 0.0));
-            if let Some(minv) = (blk(1, 0) * &tau + blk(1, 1)).try_inverse() {
-                let k = norm_1(&minv);
-                error *= k * k;
-                tau = (&s.tau + s.tau.transpose()) * C64::new(0.5, 0.0);
+            let rows =
+                |m: &DMatrix<C64>| m.row_iter().map(|r| r.iter().map(|v| v.norm()).sum::<f64>()).fold(0.0, f64::max);
+            let (ga, gb, gc, gd) = (blk(0, 0), blk(0, 1), blk(1, 0), blk(1, 1));
+            let a2 = &p.a * gd.transpose() + &p.b * gc.transpose();
+            let b2 = &p.a * gb.transpose() + &p.b * ga.transpose();
+            let a2_err = p.a_error * rows(&gd) + p.b_error * rows(&gc);
+            let b2_err = p.a_error * rows(&gb) + p.b_error * rows(&ga);
+            // A second valid bound: tau' - tau_exact' = X^T (tau - tau_exact) X with
+            // X = (c tau + d)^-1, and |(X^T E X)_ij| <= max|E| ||X||_1^2. The smaller wins.
+            let through_x = (&gc * &tau + &gd).try_inverse().map_or(f64::INFINITY, |x| error * norm_1(&x).powi(2));
+            if let Some((raw2, err2)) = quotient(&a2, &b2, a2_err, b2_err) {
+                tau = (&raw2 + raw2.transpose()) * C64::new(0.5, 0.0);
+                error = err2.min(through_x).max(asymmetry(&raw2)).max(symmetry_defect);
                 min_eig_im = min_eig(&tau);
                 reduced = Some(s.gamma);
             }

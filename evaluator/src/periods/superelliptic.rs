@@ -121,7 +121,7 @@ pub fn periods(m: u32, f: &UPoly, tol: f64) -> Result<Periods, PeriodError> {
     }
     let g = superelliptic_genus(m, n) as usize;
     if g == 0 {
-        return Err(PeriodError::NoMatrix("the curve has genus 0, so it has no Riemann matrix".into()));
+        return Err(PeriodError::NoMatrix("it has genus 0".into()));
     }
     let diffs = holomorphic_basis(m, n);
     if diffs.len() != g {

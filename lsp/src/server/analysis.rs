@@ -12,6 +12,22 @@ pub struct ShownValue {
     pub kind: String,
     pub display: String,
     pub error_bound: f64,
+    /// How the value was obtained (a Riemann matrix's differentials, nodes and checks).
+    pub detail: Option<String>,
+}
+
+/// Matrices one row per line, so that hover shows tau's entries as a grid.
+fn display(v: &kelp_evaluator::Value) -> String {
+    match v {
+        kelp_evaluator::Value::Matrix(rows) => {
+            let lines: Vec<String> = rows
+                .iter()
+                .map(|r| format!("[{}]", r.iter().map(|x| x.to_string()).collect::<Vec<_>>().join(", ")))
+                .collect();
+            format!("[{}]", lines.join(",\n "))
+        }
+        other => other.to_string(),
+    }
 }
 
 #[derive(Clone, Debug, Default)]
@@ -48,8 +64,9 @@ pub fn evaluate_text(text: &str) -> EvalSummary {
             .map(|v| ShownValue {
                 name: v.name.clone(),
                 kind: v.value.value.type_name().to_string(),
-                display: v.value.value.to_string(),
+                display: display(&v.value.value),
                 error_bound: v.value.error_bound,
+                detail: v.value.reason.clone(),
             })
             .collect();
         let curve_hints = e

@@ -301,10 +301,16 @@ impl LanguageServer for Backend {
         let (text, span) = if let Some((_, span, name)) = sym {
             let shown = doc.eval.as_ref().and_then(|e| e.values.iter().find(|v| v.name == name).cloned());
             let body = match shown {
-                Some(v) if v.error_bound > 0.0 => {
-                    format!("**{}** ({})\n\n```\n{}\n```\nerror bound {:.1e}", v.name, v.kind, v.display, v.error_bound)
+                Some(v) => {
+                    let mut b = format!("**{}** ({})\n\n```\n{}\n```", v.name, v.kind, v.display);
+                    if v.error_bound > 0.0 {
+                        b.push_str(&format!("\nerror bound {:.1e}", v.error_bound));
+                    }
+                    if let Some(d) = &v.detail {
+                        b.push_str(&format!("\n\n{d}"));
+                    }
+                    b
                 }
-                Some(v) => format!("**{}** ({})\n\n```\n{}\n```", v.name, v.kind, v.display),
                 None if doc.eval.is_none() => format!("**{name}**: being computed"),
                 None => format!("**{name}**: no value (see its diagnostics)"),
             };

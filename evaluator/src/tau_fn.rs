@@ -1,0 +1,128 @@
+//! `tau(C [, reduce = B])` and `j_invariant(T)`: Riemann matrices of curves through the
+//! period engine, with the error estimate as the value's bound and a summary (differentials,
+//! nodes, self-checks, reduction) for claim messages and hover.
+
+use crate::eval::{fail, Evaluator, Fail};
+use crate::num::Num;
+use crate::periods::shape::recognise;
+use crate::periods::superelliptic::{periods, superelliptic_genus};
+use crate::periods::{riemann_matrix, PeriodError, RiemannMatrix};
+use crate::value::{CurveValue, Value, Valued};
+use kelp_lang::ast::Arg;
+use kelp_lang::{Code, Span};
+use std::rc::Rc;
+
+fn period_fail(e: &PeriodError, span: Span, name: &str) -> Fail {
+    match e {
+        PeriodError::Unsupported(m) => {
+            fail(Code::NotSupported, span, format!("`tau({name})` is not supported yet: {m}"))
+        }
+        PeriodError::NoMatrix(m) => fail(Code::EvalFailed, span, format!("`{name}` has no Riemann matrix: {m}")),
+        PeriodError::Accuracy(m) => fail(Code::EvalFailed, span, format!("`tau({name})` failed: {m}")),
+    }
+}
+
+/// One line saying how a Riemann matrix was obtained.
+pub fn summary(r: &RiemannMatrix, equation: &str) -> String {
+    let p = &r.periods;
+    let diffs: Vec<String> = p.differentials.iter().map(|d| d.show()).collect();
+    format!(
+        "genus {} Riemann matrix of {equation} from {}; {}; {} edges, {} nodes (largest rule {}); symmetry defect {:.1e}, smallest eigenvalue of Im tau {:.3}; error <= {:.1e}",
+        p.genus,
+        diffs.join(", "),
+        if r.reduced.is_some() { "Siegel-reduced" } else { "not reduced" },
+        p.edges,
+        p.nodes,
+        p.largest_rule,
+        r.symmetry_defect,
+        r.min_eig_im,
+        r.error
+    )
+}
+
+impl Evaluator<'_> {
+    pub(crate) fn tau_call(&mut self, span: Span, args: &[Arg]) -> Result<Valued, Fail> {
+        let mut curve = None;
+        let mut reduce = true;
+        for a in args {
+            match a {
+                Arg::Positional(e) if curve.is_none() => curve = Some(e),
+                Arg::Keyword { name, value } if name.name == "reduce" => match self.expr(value)?.value {
+                    Value::Bool(b) => reduce = b,
+                    _ => return Err(fail(Code::WrongKind, value.span, "`reduce` is true or false")),
+                },
+                _ => {}
+            }
+        }
+        let ce = curve.ok_or_else(|| fail(Code::MissingArgument, span, "`tau` needs a curve"))?;
+        let Value::Curve(c) = self.expr(ce)?.value else {
+            return Err(fail(Code::WrongKind, ce.span, "`tau` needs a curve"));
+        };
+        let r = self.riemann_matrix(&c, reduce, ce.span)?;
+        let eq = recognise(&c.equation.poly, c.equation.projective).map(|s| s.describe()).unwrap_or_default();
+        let rows =
+            r.tau.row_iter().map(|row| row.iter().map(|v| Num::Complex(*v)).collect::<Vec<_>>()).collect::<Vec<_>>();
+        Ok(Valued { value: Value::Matrix(rows), error_bound: r.error, reason: Some(summary(&r, &eq)) })
+    }
+
+    fn riemann_matrix(&mut self, c: &Rc<CurveValue>, reduce: bool, span: Span) -> Result<RiemannMatrix, Fail> {
+        let Some(shape) = recognise(&c.equation.poly, c.equation.projective) else {
+            return Err(fail(
+                Code::NotSupported,
+                span,
+                format!(
+                    "`tau({})` is not supported yet: Riemann matrices are computed for curves of the form \
+                     y^m = f(x) (or x^m = f(y)); general plane curves are not supported yet",
+                    c.name
+                ),
+            ));
+        };
+        let accuracy = self.checked.settings.accuracy;
+        let p = c
+            .periods
+            .get_or_init(|| periods(shape.m, &shape.f, accuracy).map(Rc::new))
+            .clone()
+            .map_err(|e| period_fail(&e, span, &c.name))?;
+        // Two independent genus computations must agree: the differentials counted here and
+        // the exact curve algebra's delta invariants.
+        if let Some(facts) = c.facts() {
+            if let Ok(g) = facts.genus() {
+                let n = shape.f.degree().unwrap_or(0) as u32;
+                if g != superelliptic_genus(shape.m, n) as i64 {
+                    return Err(fail(
+                        Code::EvalFailed,
+                        span,
+                        format!(
+                            "`{}`: the exact genus {g} disagrees with {} holomorphic differentials; no matrix is given",
+                            c.name, p.genus
+                        ),
+                    ));
+                }
+            }
+        }
+        riemann_matrix((*p).clone(), reduce).map_err(|e| period_fail(&e, span, &c.name))
+    }
+}
+
+/// j(tau) of a 1 x 1 Riemann matrix.
+pub fn j_of_matrix(m: &[Vec<Num>], error: f64, span: Span) -> Result<Valued, Fail> {
+    if m.len() != 1 || m[0].len() != 1 {
+        return Err(fail(
+            Code::ShapeMismatch,
+            span,
+            format!(
+                "`j_invariant` of a matrix needs a 1 x 1 Riemann matrix (genus 1); this is {} x {}",
+                m.len(),
+                m[0].len()
+            ),
+        ));
+    }
+    let t = m[0][0].to_complex();
+    if !(t.im > 0.0) {
+        return Err(fail(Code::NotRiemannMatrix, span, format!("Im tau must be positive; it is {:.3e}", t.im)));
+    }
+    let (j, e) = crate::periods::modular::j_of_tau(t, error)
+        .ok_or_else(|| fail(Code::EvalFailed, span, "the q-series for j did not converge"))?;
+    let value = if j.im.abs() <= e { Num::Real(j.re) } else { Num::Complex(j) };
+    Ok(Valued { value: Value::Num(value), error_bound: e, reason: Some("from Eisenstein series E4, E6".into()) })
+}
