@@ -53,6 +53,11 @@ pub struct CurveFacts {
     pub non_reduced: bool,
     pub rational: Vec<SingularPoint>,
     pub irrational: Vec<IrrationalPoints>,
+    /// The curve is y^m = f(x) (or x^m = f(y)) with f square-free and nonconstant, hence
+    /// irreducible by Capelli's theorem: y^m - f is reducible over C(x) only when f is a
+    /// p-th power for a prime p | m, or -4 times a fourth power when 4 | m (Lang,
+    /// *Algebra*, VI Thm 9.1), and a square-free f is neither.
+    pub capelli_irreducible: bool,
 }
 
 fn q(n: i64) -> BigRational {
@@ -157,7 +162,12 @@ pub fn analyse(poly: &Poly, projective: bool) -> CurveFacts {
         }
         p
     };
-    let mut facts = CurveFacts { degree: d, non_reduced: false, rational: vec![], irrational: vec![] };
+    let capelli_irreducible = crate::periods::shape::recognise(poly, projective).is_some_and(|s| {
+        let fd = s.f.derivative();
+        s.f.coprime_mod_p(&fd) == Some(true) || s.f.gcd(&fd).degree() == Some(0)
+    });
+    let mut facts =
+        CurveFacts { degree: d, non_reduced: false, rational: vec![], irrational: vec![], capelli_irreducible };
 
     // Affine chart z = 1 of the sheared curve.
     let fa = P2::chart(&g, 2);
@@ -420,7 +430,7 @@ impl CurveFacts {
         // lines; every tangent line at every rational singular point was tested above (at
         // irrational points the test is not built yet, so a line stays possible there).
         let open: Vec<i64> = open.into_iter().filter(|&a| a != 1 || !self.irrational.is_empty()).collect();
-        if open.is_empty() {
+        if open.is_empty() || self.capelli_irreducible {
             return Ok(g);
         }
         Err(NoGenus::Unsupported(format!(

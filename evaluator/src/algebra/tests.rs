@@ -194,3 +194,16 @@ fn irrational_points_are_described_by_their_exact_coordinates() {
     assert_eq!(irr2.description, "(x - y, y) = (t, -3*t) with t a root of 2*t^2 - 1");
     assert_eq!(irr.local.as_ref().unwrap().as_ref().unwrap().kind, "A1 (node)");
 }
+
+// y^3 = x^12 + x^5 - 7: the singular point at infinity leaves room for a factor of degree 2
+// by the Bezout count alone; Capelli's theorem (Lang, Algebra, VI 9.1) settles
+// irreducibility, and the genus is Riemann–Hurwitz's ((m-1)(n-1) + 1 - gcd(m, n)) / 2 = 10,
+// the same count the period code's differentials give.
+#[test]
+fn superelliptic_curves_are_irreducible_by_capelli() {
+    let f = facts("y^3 = x^12 + x^5 - 7");
+    assert!(f.capelli_irreducible);
+    assert_eq!(f.genus(), Ok(10));
+    // y^2 = (x^2 - 1)^2 is not square-free: no certificate, and it is reducible.
+    assert!(!facts("y^2 = (x^2 - 1)^2").capelli_irreducible);
+}

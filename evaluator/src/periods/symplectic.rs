@@ -51,14 +51,30 @@ pub fn symplectic_basis(k: &[Vec<i64>]) -> Result<SymplecticBasis, String> {
             }
         }
     }
+    // The remaining vectors (rows of `rem`, in the input basis) and their Gram matrix
+    // `gram[i][j] = <rem_i, rem_j>`, kept up to date by the same row operations.
     let mut rem: Vec<Vec<i128>> = (0..n).map(|i| (0..n).map(|j| i128::from(i == j)).collect()).collect();
+    let mut gram: Vec<Vec<i128>> = k.iter().map(|r| r.iter().map(|&v| v as i128).collect()).collect();
     let (mut a, mut b) = (vec![], vec![]);
+    // z -= q * y, in the vectors and in the Gram matrix.
+    let sub = |rem: &mut Vec<Vec<i128>>, gram: &mut Vec<Vec<i128>>, z: usize, q: i128, y: usize| {
+        if q == 0 {
+            return;
+        }
+        let yv = rem[y].clone();
+        axpy(&mut rem[z], q, &yv);
+        let gy = gram[y].clone();
+        axpy(&mut gram[z], q, &gy);
+        for row in gram.iter_mut() {
+            row[z] -= q * row[y];
+        }
+    };
     loop {
         // The pair with the smallest nonzero pairing.
         let mut best: Option<(usize, usize, i128)> = None;
         for i in 0..rem.len() {
             for j in i + 1..rem.len() {
-                let d = pair(k, &rem[i], &rem[j]);
+                let d = gram[i][j];
                 if d != 0 && best.is_none_or(|(_, _, e)| d.abs() < e.abs()) {
                     best = Some((i, j, d));
                 }
@@ -66,21 +82,18 @@ pub fn symplectic_basis(k: &[Vec<i64>]) -> Result<SymplecticBasis, String> {
         }
         let Some((mut ix, mut iy, _)) = best else { break };
         loop {
-            let (x, y) = (rem[ix].clone(), rem[iy].clone());
-            let d = pair(k, &x, &y);
+            let d = gram[ix][iy];
             let mut next: Option<(usize, usize, i128)> = None;
             for z in 0..rem.len() {
                 if z == ix || z == iy {
                     continue;
                 }
                 // <x, z - q y> = <x, z> - q d and <y, z + p x> = <y, z> - p d.
-                let q = round_div(pair(k, &x, &rem[z]), d);
-                axpy(&mut rem[z], q, &y);
-                let p = round_div(pair(k, &y, &rem[z]), d);
-                axpy(&mut rem[z], -p, &x);
-                let ex = pair(k, &x, &rem[z]);
-                let ey = pair(k, &y, &rem[z]);
-                for (e, pr) in [(ex, (ix, z)), (ey, (iy, z))] {
+                let q = round_div(gram[ix][z], d);
+                sub(&mut rem, &mut gram, z, q, iy);
+                let p = round_div(gram[iy][z], d);
+                sub(&mut rem, &mut gram, z, -p, ix);
+                for (e, pr) in [(gram[ix][z], (ix, z)), (gram[iy][z], (iy, z))] {
                     if e != 0 && next.is_none_or(|(_, _, f)| e.abs() < f.abs()) {
                         next = Some((pr.0, pr.1, e));
                     }
@@ -104,8 +117,13 @@ pub fn symplectic_basis(k: &[Vec<i64>]) -> Result<SymplecticBasis, String> {
                     a.push(conv(&rem[p])?);
                     b.push(conv(&rem[q])?);
                     let (hi, lo) = (ix.max(iy), ix.min(iy));
-                    rem.remove(hi);
-                    rem.remove(lo);
+                    for idx in [hi, lo] {
+                        rem.remove(idx);
+                        gram.remove(idx);
+                        for row in gram.iter_mut() {
+                            row.remove(idx);
+                        }
+                    }
                     break;
                 }
             }
