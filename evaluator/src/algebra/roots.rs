@@ -68,10 +68,11 @@ pub fn inclusion_radius(p: &UPoly, z: C64) -> f64 {
     n * (pv.norm() + 4.0 * n * f64::EPSILON * scale) / dv.norm()
 }
 
-/// Roots refined by one Newton step with p evaluated in double-double arithmetic, each with
-/// a radius n (|p(z)| + evaluation error) / |p'(z)| that contains a root (the inclusion
-/// above, with p(z) known to about 1e-30 of sum |a_k| |z|^k instead of 1e-16, so the radius
-/// reflects the root's real accuracy). Horner in double-double: Dekker's two-sum and
+/// Roots refined by Aberth–Ehrlich sweeps with p and p' evaluated in double-double
+/// arithmetic, each with a radius n (|p(z)| + evaluation error) / |p'(z)| that contains a
+/// root (the inclusion above, with p(z) known to about 1e-30 of sum |a_k| |z|^k instead of
+/// 1e-16, so the radius reflects the root's real accuracy, and clusters of close roots are
+/// resolved down to double precision). Horner in double-double: Dekker's two-sum and
 /// two-product (Dekker, Numer. Math. 18 (1971)).
 pub fn refined_roots(p: &UPoly) -> Vec<(C64, f64)> {
     let n = p.degree().unwrap_or(0);
@@ -83,33 +84,53 @@ pub fn refined_roots(p: &UPoly) -> Vec<(C64, f64)> {
                 (hi, lo)
             })
             .collect();
-    let dp = p.derivative();
-    let eval_dd = |z: C64| -> (C64, f64) {
-        let (mut re, mut im) = (dd::Dd::ZERO, dd::Dd::ZERO);
-        let (zr, zi) = (dd::Dd::from(z.re), dd::Dd::from(z.im));
+    // (p(z), p'(z), a bound on the error of p(z)).
+    let eval_dd = |z: C64| -> (C64, C64, f64) {
+        use dd::Dd;
+        let (zr, zi) = (Dd::from(z.re), Dd::from(z.im));
+        let cmul = |(ar, ai): (Dd, Dd)| (ar.mul(zr).sub(ai.mul(zi)), ar.mul(zi).add(ai.mul(zr)));
+        let (mut pv, mut dv) = ((Dd::ZERO, Dd::ZERO), (Dd::ZERO, Dd::ZERO));
         let mut size = 0.0;
         for &(hi, lo) in coeffs.iter().rev() {
-            let nr = re.mul(zr).sub(im.mul(zi));
-            let ni = re.mul(zi).add(im.mul(zr));
-            re = nr.add(dd::Dd { hi, lo });
-            im = ni;
+            let d = cmul(dv);
+            dv = (d.0.add(pv.0), d.1.add(pv.1));
+            let q = cmul(pv);
+            pv = (q.0.add(Dd { hi, lo }), q.1);
             size = size * z.norm() + hi.abs();
         }
-        (C64::new(re.to_f64(), im.to_f64()), 1e-30 * (n as f64 + 1.0) * size)
+        (
+            C64::new(pv.0.to_f64(), pv.1.to_f64()),
+            C64::new(dv.0.to_f64(), dv.1.to_f64()),
+            1e-30 * (n as f64 + 1.0) * size,
+        )
     };
-    complex_roots(p)
-        .into_iter()
-        .map(|z0| {
-            let (pv, _) = eval_dd(z0);
-            let d0 = dp.eval_f64(z0);
-            let z = if d0.norm() > 0.0 { z0 - pv / d0 } else { z0 };
-            let (pv, err) = eval_dd(z);
-            let d = dp.eval_f64(z);
-            if d.norm() == 0.0 {
+    let mut z = complex_roots(p);
+    for _ in 0..40 {
+        let mut moved: f64 = 0.0;
+        for i in 0..z.len() {
+            let (pv, dv, _) = eval_dd(z[i]);
+            if pv.norm() == 0.0 || dv.norm() == 0.0 {
+                continue;
+            }
+            let ratio = pv / dv;
+            let s: C64 = (0..z.len()).filter(|&j| j != i).map(|j| C64::new(1.0, 0.0) / (z[i] - z[j])).sum();
+            let step = ratio / (C64::new(1.0, 0.0) - ratio * s);
+            if step.re.is_finite() && step.im.is_finite() {
+                z[i] -= step;
+                moved = moved.max(step.norm() / (1e-300 + z[i].norm()));
+            }
+        }
+        if moved < 1e-17 {
+            break;
+        }
+    }
+    z.into_iter()
+        .map(|z| {
+            let (pv, dv, err) = eval_dd(z);
+            if dv.norm() == 0.0 {
                 return (z, f64::INFINITY);
             }
-            // The derivative is itself rounded; a relative margin covers it.
-            (z, n as f64 * (pv.norm() + err) / (d.norm() * (1.0 - 1e-8)))
+            (z, n as f64 * (pv.norm() + err) / dv.norm())
         })
         .collect()
 }

@@ -1,8 +1,9 @@
 //! The j-invariant of a genus-1 Riemann matrix, from Eisenstein series.
 //!
-//! j = 1728 E4^3 / (E4^3 - E6^2), E4 = 1 + 240 sum sigma_3(n) q^n, E6 = 1 - 504 sum
-//! sigma_5(n) q^n, q = exp(2 pi i tau) (DLMF 23.15 and 23.18; Serre, *A Course in
-//! Arithmetic*, VII). tau is first moved into the standard fundamental domain, where
+//! j = E4^3 / Delta with E4 = 1 + 240 sum sigma_3(n) q^n, Delta = q prod (1 - q^n)^24 and
+//! q = exp(2 pi i tau) (Serre, *A Course in Arithmetic*, VII 4.4 and 4.5). The textbook
+//! 1728 E4^3 / (E4^3 - E6^2) loses everything to cancellation high in the upper half plane
+//! (E4^3 - E6^2 = 1728 q + ...), so Delta comes from Jacobi's product instead. tau is first moved into the standard fundamental domain, where
 //! |q| <= exp(-pi sqrt 3) < 0.0044, so a few dozen terms reach double precision. Errors
 //! propagate through j'(tau) = -2 pi i (E6 / E4) j(tau).
 
@@ -51,9 +52,18 @@ pub fn j_of_tau(tau: C64, tau_error: f64) -> Option<(C64, f64)> {
     }
     let e4 = 1.0 + 240.0 * e4;
     let e6 = 1.0 - 504.0 * e6;
-    let disc = e4 * e4 * e4 - e6 * e6;
-    let j = 1728.0 * e4 * e4 * e4 / disc;
-    let dj = 2.0 * PI * (1728.0 * e4 * e4 * e6 / disc).norm();
+    let mut delta = q;
+    let mut qn = C64::new(1.0, 0.0);
+    for _ in 0..200 {
+        qn *= q;
+        if qn.norm() < 1e-19 {
+            break;
+        }
+        delta *= (1.0 - qn).powi(24);
+    }
+    let j = e4 * e4 * e4 / delta;
+    // j' = -2 pi i (E6 / E4) j.
+    let dj = 2.0 * PI * (j * e6 / e4).norm();
     Some((j, dj * err + 1e-14 * j.norm().max(1.0)))
 }
 
@@ -74,6 +84,19 @@ mod tests {
         let (j1, _) = j_of_tau(t, 0.0).unwrap();
         let (j2, _) = j_of_tau(-1.0 / (t + 3.0), 0.0).unwrap();
         assert!((j1 - j2).norm() < 1e-10 * j1.norm());
+    }
+
+    // High in the upper half plane j = 1/q + 744 + 196884 q + ... (the classical
+    // q-expansion; Serre VII.4), which the cancellation-prone formula missed by 1e-5.
+    #[test]
+    fn high_in_the_upper_half_plane() {
+        for y in [3.0, 5.28, 6.0] {
+            let q = (-2.0 * PI * y).exp();
+            let want = 1.0 / q + 744.0 + 196_884.0 * q + 21_493_760.0 * q * q;
+            let (j, e) = j_of_tau(C64::new(0.0, y), 0.0).unwrap();
+            assert!((j.re - want).abs() < 1e-13 * want && j.im.abs() < 1e-13 * want, "{y}: {j} vs {want}");
+            assert!(e < 1e-13 * want);
+        }
     }
 
     // j(i sqrt 2) = 8000 (the CM value for discriminant -8; classical, from memory, and

@@ -1,5 +1,5 @@
-//! Gauss–Jacobi rules for the weight (1 - t^2)^alpha on [-1, 1], alpha in (-1, 0), and the
-//! Bernstein-ellipse error bound that chooses their size.
+//! Gauss–Jacobi rules for the weights (1 - t)^alpha (1 + t)^beta on [-1, 1] with alpha and
+//! beta in (-1, 0], and the Bernstein-ellipse error bound that chooses their size.
 //!
 //! Nodes and weights by the Golub–Welsch eigenvalue method (Golub and Welsch, Math. Comp. 23
 //! (1969)) from the Jacobi-polynomial recurrence; alpha = -1/2 uses the closed-form
@@ -25,45 +25,76 @@ pub struct Rule {
 /// The rule sizes used, so that rules are shared between edges and calls.
 pub const SIZES: [usize; 16] = [4, 6, 8, 12, 16, 20, 24, 32, 40, 48, 64, 80, 96, 128, 192, 256];
 
+/// A weight (1 - t)^(-a/q) (1 + t)^(-b/q): exponents as fractions with one denominator.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+pub struct Weight {
+    pub a: u32,
+    pub b: u32,
+    pub q: u32,
+}
+
+impl Weight {
+    /// (1 - t^2)^(-p/q).
+    pub fn symmetric(p: u32, q: u32) -> Weight {
+        Weight { a: p, b: p, q }
+    }
+    pub fn alpha(&self) -> f64 {
+        -(self.a as f64) / self.q as f64
+    }
+    pub fn beta(&self) -> f64 {
+        -(self.b as f64) / self.q as f64
+    }
+    /// mu0 = integral of the weight over [-1, 1]
+    /// = 2^(alpha + beta + 1) Gamma(alpha + 1) Gamma(beta + 1) / Gamma(alpha + beta + 2).
+    pub fn mu0(&self) -> f64 {
+        let (al, be) = (self.alpha(), self.beta());
+        2f64.powf(al + be + 1.0) * gamma(al + 1.0) * gamma(be + 1.0) / gamma(al + be + 2.0)
+    }
+}
+
 thread_local! {
-    static RULES: RefCell<HashMap<(u32, u32, usize), Rc<Rule>>> = RefCell::new(HashMap::new());
+    static RULES: RefCell<HashMap<(Weight, usize), Rc<Rule>>> = RefCell::new(HashMap::new());
 }
 
-/// The N-point rule for the weight (1 - t^2)^(-p/q), 0 < p < q, cached per thread.
-pub fn rule(p: u32, q: u32, n: usize) -> Rc<Rule> {
-    let g = num_integer::gcd(p, q);
-    let key = (p / g, q / g, n);
-    RULES.with(|r| r.borrow_mut().entry(key).or_insert_with(|| Rc::new(build(key.0, key.1, n))).clone())
+/// The N-point rule for a weight, cached per thread.
+pub fn rule(w: Weight, n: usize) -> Rc<Rule> {
+    let g = num_integer::gcd(num_integer::gcd(w.a, w.b), w.q).max(1);
+    let key = Weight { a: w.a / g, b: w.b / g, q: w.q / g };
+    RULES.with(|r| r.borrow_mut().entry((key, n)).or_insert_with(|| Rc::new(build(key, n))).clone())
 }
 
-/// mu0 = integral of (1 - t^2)^alpha over [-1, 1] = sqrt(pi) Gamma(alpha + 1) / Gamma(alpha + 3/2).
+/// mu0 for the symmetric weight (1 - t^2)^alpha: sqrt(pi) Gamma(alpha + 1) / Gamma(alpha + 3/2).
 pub fn mu0(alpha: f64) -> f64 {
     PI.sqrt() * gamma(alpha + 1.0) / gamma(alpha + 1.5)
 }
 
-fn build(p: u32, q: u32, n: usize) -> Rule {
-    let alpha = -(p as f64) / q as f64;
-    if 2 * p == q {
+fn build(w: Weight, n: usize) -> Rule {
+    let (alpha, beta) = (w.alpha(), w.beta());
+    if 2 * w.a == w.q && w.a == w.b {
         let nodes = (0..n).map(|k| (PI * (2 * k + 1) as f64 / (2 * n) as f64).cos()).collect();
         return Rule { nodes, weights: vec![PI / n as f64; n] };
     }
-    // Symmetric Jacobi matrix for P_k^(alpha, alpha): zero diagonal, off-diagonal b_k.
-    let ab = 2.0 * alpha;
+    // Jacobi matrix of P_k^(alpha, beta) (Golub and Welsch): diagonal a_k, off-diagonal b_k.
+    let ab = alpha + beta;
     let mut jm = DMatrix::<f64>::zeros(n, n);
-    for k in 1..n {
+    for k in 0..n {
         let kf = k as f64;
+        let s = 2.0 * kf + ab;
+        jm[(k, k)] = if k == 0 { (beta - alpha) / (ab + 2.0) } else { (beta * beta - alpha * alpha) / (s * (s + 2.0)) };
+        if k == 0 {
+            continue;
+        }
         let b2 = if k == 1 {
             // The general formula is 0/0 when alpha + beta = -1; this is its limit.
-            4.0 * (1.0 + alpha) * (1.0 + alpha) / ((2.0 + ab) * (2.0 + ab) * (3.0 + ab))
+            4.0 * (1.0 + alpha) * (1.0 + beta) / ((2.0 + ab) * (2.0 + ab) * (3.0 + ab))
         } else {
-            let s = 2.0 * kf + ab;
-            4.0 * kf * (kf + alpha) * (kf + alpha) * (kf + ab) / (s * s * (s + 1.0) * (s - 1.0))
+            4.0 * kf * (kf + alpha) * (kf + beta) * (kf + ab) / (s * s * (s + 1.0) * (s - 1.0))
         };
         jm[(k - 1, k)] = b2.sqrt();
         jm[(k, k - 1)] = b2.sqrt();
     }
     let eig = SymmetricEigen::new(jm);
-    let m0 = mu0(alpha);
+    let m0 = w.mu0();
     let mut pairs: Vec<(f64, f64)> =
         (0..n).map(|i| (eig.eigenvalues[i], m0 * eig.eigenvectors[(0, i)] * eig.eigenvectors[(0, i)])).collect();
     pairs.sort_by(|a, b| a.0.total_cmp(&b.0));
@@ -136,7 +167,7 @@ mod tests {
         for (p, q) in [(1, 3), (2, 3), (1, 4), (3, 4), (1, 2), (4, 5)] {
             let alpha = -(p as f64) / q as f64;
             let m0 = mu0(alpha);
-            let r = rule(p, q, 12);
+            let r = rule(Weight::symmetric(p, q), 12);
             let s0: f64 = r.weights.iter().sum();
             let s2: f64 = r.nodes.iter().zip(&r.weights).map(|(t, w)| w * t * t).sum();
             let s4: f64 = r.nodes.iter().zip(&r.weights).map(|(t, w)| w * t.powi(4)).sum();
@@ -145,6 +176,26 @@ mod tests {
             let m4 = m0 * 3.0 / ((2.0 * alpha + 3.0) * (2.0 * alpha + 5.0));
             assert!((s4 - m4).abs() < 1e-13, "{p}/{q}");
         }
+    }
+
+    // One-sided weights through their first two moments: the mean of t under the weight is
+    // (beta - alpha) / (alpha + beta + 2) (the mean of a Beta(beta + 1, alpha + 1) variable,
+    // mapped to [-1, 1]; common practice); plain Legendre too.
+    #[test]
+    fn one_sided_and_plain_rules() {
+        for w in [Weight { a: 0, b: 2, q: 3 }, Weight { a: 1, b: 0, q: 4 }, Weight { a: 0, b: 0, q: 1 }] {
+            let (al, be) = (w.alpha(), w.beta());
+            let r = rule(w, 10);
+            let s0: f64 = r.weights.iter().sum();
+            assert!((s0 - w.mu0()).abs() < 1e-13, "{w:?}");
+            // integral of (1-t)^al (1+t)^be t = mu0 (be - al) / (al + be + 2).
+            let s1: f64 = r.nodes.iter().zip(&r.weights).map(|(t, x)| x * t).sum();
+            assert!((s1 - w.mu0() * (be - al) / (al + be + 2.0)).abs() < 1e-13, "{w:?}");
+        }
+        // Legendre: 2 and integral of t^2 = 2/3.
+        let r = rule(Weight { a: 0, b: 0, q: 1 }, 6);
+        let s2: f64 = r.nodes.iter().zip(&r.weights).map(|(t, x)| x * t * t).sum();
+        assert!((s2 - 2.0 / 3.0).abs() < 1e-14);
     }
 
     // An analytic integrand converges at the predicted rate: 1/(t - 3) with the Chebyshev
@@ -157,7 +208,7 @@ mod tests {
         let rho = 1.0 + 0.7 * (rho_max - 1.0);
         let m = (0..64).map(|k| 1.0 / (ellipse_point(rho, 2.0 * PI * k as f64 / 64.0) - u).norm()).fold(0.0, f64::max);
         for n in [4, 8, 12] {
-            let r = rule(1, 2, n);
+            let r = rule(Weight::symmetric(1, 2), n);
             let v: f64 = r.nodes.iter().zip(&r.weights).map(|(t, w)| w / (t - 3.0)).sum();
             assert!((v - exact).abs() <= error_bound(PI, m, rho, n), "n = {n}");
         }

@@ -255,6 +255,46 @@ pub fn periods(m: u32, f: &UPoly, tol: f64) -> Result<Periods, PeriodError> {
     })
 }
 
+/// A piece [lo, hi] of an edge's coordinate, and the smallest ellipse parameter (in the
+/// piece's own coordinate) of the singular points outside it: the other branch points and
+/// the edge's ends that the piece does not contain.
+struct Piece {
+    lo: f64,
+    hi: f64,
+    rho: f64,
+}
+
+/// Pieces below this ellipse parameter are halved: a branch point near an edge (a cluster
+/// of close roots) gets pieces graded down to its distance, each converging fast.
+const SPLIT_RHO: f64 = 1.8;
+
+fn pieces(us: &[C64]) -> Vec<Piece> {
+    fn rho(us: &[C64], lo: f64, hi: f64) -> f64 {
+        let local = |z: C64| (2.0 * z - lo - hi) / (hi - lo);
+        let mut r = us.iter().map(|&u| quad::rho_of(local(u))).fold(f64::INFINITY, f64::min);
+        if lo > -1.0 {
+            r = r.min(quad::rho_of(local(C64::new(-1.0, 0.0))));
+        }
+        if hi < 1.0 {
+            r = r.min(quad::rho_of(local(C64::new(1.0, 0.0))));
+        }
+        r
+    }
+    let mut out = vec![];
+    let mut stack = vec![(-1.0, 1.0, 0)];
+    while let Some((lo, hi, depth)) = stack.pop() {
+        let r = rho(us, lo, hi);
+        if r >= SPLIT_RHO || depth >= 60 || hi - lo < 1e-13 {
+            out.push(Piece { lo, hi, rho: r });
+        } else {
+            let mid = 0.5 * (lo + hi);
+            stack.push((mid, hi, depth + 1));
+            stack.push((lo, mid, depth + 1));
+        }
+    }
+    out
+}
+
 /// Integrals of every differential along one edge against the edge's branch y_e, with the
 /// leading-coefficient arguments of y_e at both ends. Returns (data, nodes used, largest rule).
 fn edge_integrals(
@@ -281,67 +321,98 @@ fn edge_integrals(
     let mut errors = vec![0.0; diffs.len()];
     let mut used = 0;
     let mut largest = 0;
-    let rho_max = e.rho.min(40.0);
     let max_j = diffs.iter().map(|d| d.j).max().unwrap_or(0);
-    for j in 1..=max_j {
-        let which: Vec<usize> = (0..diffs.len()).filter(|&l| diffs[l].j == j).collect();
-        let Some(max_pow) = which.iter().map(|&l| diffs[l].power).max() else { continue };
-        let jf = j as f64;
-        // |g(t)| = |half| |x(t)|^i |Ce|^-j prod |t - u_k|^(-j/m), largest over the powers i.
-        let abs_g = |t: C64| -> f64 {
-            let x = (mid + half * t).norm();
-            // One logarithm of the product of squared distances (no overflow for the
-            // degrees accepted: each factor is far from 0 and from 1e150).
-            let prod: f64 = us.iter().map(|&u| (t - u).norm_sqr()).product();
-            half.norm() * x.max(1.0).powi(max_pow as i32) * (-jf * (log_ce.re + 0.5 * prod.ln() / mf)).exp()
+    for piece in pieces(&us) {
+        let (lo, hi) = (piece.lo, piece.hi);
+        let (cp, hp) = ((lo + hi) / 2.0, (hi - lo) / 2.0);
+        let (left, right) = (lo == -1.0, hi == 1.0);
+        // log(t - u) continuous on the piece with its cut outside the piece's ellipses, shifted
+        // by 2 pi i k to equal the edge-wide branch (so y_e stays one branch along the edge).
+        let centre = C64::new(cp, 0.0);
+        let shifts: Vec<(C64, C64)> = us
+            .iter()
+            .map(|&u| {
+                let local = (centre - u).ln();
+                let k = ((log_branch(centre, u) - local).im / (2.0 * PI)).round();
+                (u, local + C64::new(0.0, 2.0 * PI * k))
+            })
+            .collect();
+        let piece_log = |t: C64| -> C64 {
+            shifts.iter().map(|&(u, base)| base + (C64::new(1.0, 0.0) + (t - centre) / (centre - u)).ln()).sum()
         };
-        let alpha = -jf / mf;
-        let mu0 = quad::mu0(alpha);
-        let m0 = (0..=32).map(|k| abs_g(C64::new(-1.0 + k as f64 / 16.0, 0.0))).fold(0.0, f64::max);
-        let target = (1e-3 * tol).max(1e-16) * mu0 * m0;
-        let mut best: Option<(usize, f64)> = None;
-        for frac in [0.3, 0.5, 0.7, 0.85, 0.95] {
-            let rho = 1.0 + (rho_max - 1.0) * frac;
-            let mm =
-                1.2 * (0..96).map(|k| abs_g(quad::ellipse_point(rho, 2.0 * PI * k as f64 / 96.0))).fold(0.0, f64::max);
-            if let Some(size) = quad::size_for(mu0, mm, rho, target) {
-                let bound = quad::error_bound(mu0, mm, rho, size);
-                if best.is_none_or(|(s, _)| size < s) {
-                    best = Some((size, bound));
+        let rho_max = piece.rho.min(40.0);
+        for j in 1..=max_j {
+            let which: Vec<usize> = (0..diffs.len()).filter(|&l| diffs[l].j == j).collect();
+            let Some(max_pow) = which.iter().map(|&l| diffs[l].power).max() else { continue };
+            let jf = j as f64;
+            let ex = jf / mf;
+            // The endpoint factors a piece does not take into its weight, and the constant
+            // hp^(-j/m) of those it does: (1 -+ t) = hp (1 -+ s) at a touched end.
+            let ends = |t: C64| -> C64 {
+                let mut f = C64::new(1.0, 0.0);
+                f *= if right { C64::new(hp.powf(-ex), 0.0) } else { (1.0 - t).powf(-ex) };
+                f *= if left { C64::new(hp.powf(-ex), 0.0) } else { (1.0 + t).powf(-ex) };
+                f
+            };
+            // |integrand / weight| at local s, largest over the powers i.
+            let abs_g = |s: C64| -> f64 {
+                let t = centre + hp * s;
+                let x = (mid + half * t).norm();
+                // One logarithm of the product of squared distances (no overflow for the
+                // degrees accepted: each factor is far from 0 and from 1e150).
+                let prod: f64 = us.iter().map(|&u| (t - u).norm_sqr()).product();
+                half.norm()
+                    * hp
+                    * ends(t).norm()
+                    * x.max(1.0).powi(max_pow as i32)
+                    * (-jf * (log_ce.re + 0.5 * prod.ln() / mf)).exp()
+            };
+            let weight = quad::Weight { a: if right { j } else { 0 }, b: if left { j } else { 0 }, q: m };
+            let mu0 = weight.mu0();
+            let m0 = (0..=32).map(|k| abs_g(C64::new(-1.0 + k as f64 / 16.0, 0.0))).fold(0.0, f64::max);
+            let target = (1e-3 * tol).max(1e-16) * mu0 * m0;
+            let mut best: Option<(usize, f64)> = None;
+            for frac in [0.3, 0.5, 0.7, 0.85, 0.95] {
+                let rho = 1.0 + (rho_max - 1.0) * frac;
+                let mm = 1.2
+                    * (0..96).map(|k| abs_g(quad::ellipse_point(rho, 2.0 * PI * k as f64 / 96.0))).fold(0.0, f64::max);
+                if let Some(size) = quad::size_for(mu0, mm, rho, target) {
+                    let bound = quad::error_bound(mu0, mm, rho, size);
+                    if best.is_none_or(|(s, _)| size < s) {
+                        best = Some((size, bound));
+                    }
                 }
             }
-        }
-        let Some((size, bound)) = best else {
-            return Err(PeriodError::Accuracy(format!(
-                "branch points {:.4} and {:.4}: the edge passes too close to another branch point for {} quadrature nodes at {tol:.0e}",
-                pa,
-                pb,
-                quad::SIZES[quad::SIZES.len() - 1]
-            )));
-        };
-        used += size;
-        largest = largest.max(size);
-        let rule = quad::rule(j, m, size);
-        let mut magnitude = vec![0.0; which.len()];
-        for (t, w) in rule.nodes.iter().zip(&rule.weights) {
-            let t = C64::new(*t, 0.0);
-            let x = mid + half * t;
-            let base = half * *w * (-jf * (log_ce + sum_log(t) / mf)).exp();
-            let mut xp = C64::new(1.0, 0.0);
-            let mut pow = 0;
+            let Some((size, bound)) = best else {
+                return Err(PeriodError::Accuracy(format!(
+                    "branch points {pa:.4} and {pb:.4}: a piece of the edge passes too close to another branch point for {} quadrature nodes at {tol:.0e}",
+                    quad::SIZES[quad::SIZES.len() - 1]
+                )));
+            };
+            used += size;
+            largest = largest.max(size);
+            let rule = quad::rule(weight, size);
+            let mut magnitude = vec![0.0; which.len()];
+            for (sn, w) in rule.nodes.iter().zip(&rule.weights) {
+                let t = centre + hp * sn;
+                let x = mid + half * t;
+                let base = half * hp * *w * ends(t) * (-jf * (log_ce + piece_log(t) / mf)).exp();
+                let mut xp = C64::new(1.0, 0.0);
+                let mut pow = 0;
+                for (slot, &l) in which.iter().enumerate() {
+                    while pow < diffs[l].power {
+                        xp *= x;
+                        pow += 1;
+                    }
+                    let term = base * xp;
+                    integrals[l] += term;
+                    magnitude[slot] += term.norm();
+                }
+            }
             for (slot, &l) in which.iter().enumerate() {
-                while pow < diffs[l].power {
-                    xp *= x;
-                    pow += 1;
-                }
-                let term = base * xp;
-                integrals[l] += term;
-                magnitude[slot] += term.norm();
+                // Rounding: each term carries about n + a few ulps (the log sum), the sum N more.
+                errors[l] += bound + 2.0 * (size + n) as f64 * f64::EPSILON * magnitude[slot];
             }
-        }
-        for (slot, &l) in which.iter().enumerate() {
-            // Rounding: each term carries about n + a few ulps (the log sum), the sum N more.
-            errors[l] = bound + 2.0 * (size + n) as f64 * f64::EPSILON * magnitude[slot];
         }
     }
     Ok((EdgeData { a: e.a, b: e.b, arg_a, arg_b, integrals, errors }, used, largest))

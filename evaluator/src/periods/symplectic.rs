@@ -13,19 +13,6 @@ pub struct SymplecticBasis {
     pub b: Vec<Vec<i64>>,
 }
 
-fn pair(k: &[Vec<i64>], u: &[i128], v: &[i128]) -> i128 {
-    let mut s = 0i128;
-    for (i, ui) in u.iter().enumerate() {
-        if *ui == 0 {
-            continue;
-        }
-        for (j, vj) in v.iter().enumerate() {
-            s += ui * k[i][j] as i128 * vj;
-        }
-    }
-    s
-}
-
 fn round_div(a: i128, d: i128) -> i128 {
     let q = a.div_euclid(d);
     let r = a.rem_euclid(d);
@@ -135,6 +122,19 @@ pub fn symplectic_basis(k: &[Vec<i64>]) -> Result<SymplecticBasis, String> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    fn pair(k: &[Vec<i64>], u: &[i128], v: &[i128]) -> i128 {
+        let mut s = 0i128;
+        for (i, ui) in u.iter().enumerate() {
+            if *ui == 0 {
+                continue;
+            }
+            for (j, vj) in v.iter().enumerate() {
+                s += ui * k[i][j] as i128 * vj;
+            }
+        }
+        s
+    }
 
     fn form(k: &[Vec<i64>], u: &[i64], v: &[i64]) -> i64 {
         let u: Vec<i128> = u.iter().map(|&x| x as i128).collect();
