@@ -90,6 +90,7 @@ pub fn value_json(v: &Value) -> (&'static str, J) {
             "point",
             json!({"coordinates": entries_json(coords, any_complex(coords.iter())), "projective": projective}),
         ),
+        Value::Wave(w) => ("wave", crate::wave_fn::wave_json(w)),
         Value::SingularPoint(p) => (
             "point",
             json!({

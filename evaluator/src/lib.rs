@@ -13,6 +13,8 @@ mod tau_fn;
 pub mod theta;
 mod theta_fn;
 pub mod value;
+mod wave_fn;
+pub mod waves;
 
 pub use eval::{evaluate, Evaluation, Expectation, Mode, NamedValue};
 pub use value::{Value, Valued};

@@ -65,7 +65,12 @@ impl Evaluator<'_> {
         Ok(Valued { value: Value::Matrix(rows), error_bound: r.error, reason: Some(summary(&r, &eq)) })
     }
 
-    fn riemann_matrix(&mut self, c: &Rc<CurveValue>, reduce: bool, span: Span) -> Result<RiemannMatrix, Fail> {
+    pub(crate) fn riemann_matrix(
+        &mut self,
+        c: &Rc<CurveValue>,
+        reduce: bool,
+        span: Span,
+    ) -> Result<RiemannMatrix, Fail> {
         let Some(shape) = recognise(&c.equation.poly, c.equation.projective) else {
             return Err(fail(
                 Code::NotSupported,

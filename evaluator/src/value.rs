@@ -52,6 +52,7 @@ pub enum Value {
     Curve(Rc<CurveValue>),
     Point { coords: Vec<Num>, projective: bool },
     SingularPoint(Rc<SingularInfo>),
+    Wave(Rc<crate::waves::Wave>),
 }
 
 /// A value with the bound on its numerical error (0 for exact values and literals).
@@ -83,6 +84,7 @@ impl Value {
             Value::List(_) => "list",
             Value::Curve(_) => "curve",
             Value::Point { .. } | Value::SingularPoint(_) => "point",
+            Value::Wave(_) => "wave",
         }
     }
 }
@@ -107,6 +109,7 @@ impl fmt::Display for Value {
                 let sep = if *projective { " : " } else { ", " };
                 write!(f, "({})", coords.iter().map(|n| n.to_string()).collect::<Vec<_>>().join(sep))
             }
+            Value::Wave(w) => write!(f, "{} wave: {}", w.kind_name(), w.origin),
             Value::SingularPoint(p) => write!(
                 f,
                 "({}) {}, multiplicity {}, delta {}",

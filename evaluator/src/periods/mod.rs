@@ -26,6 +26,9 @@ pub struct RiemannMatrix {
     pub min_eig_im: f64,
     /// Whether tau was Siegel-reduced (and by which element of Sp(2g, Z)).
     pub reduced: Option<DMatrix<i64>>,
+    /// The a-periods in the basis tau refers to (reduced or not): the normalized
+    /// differentials are A^-1 omega with this A.
+    pub a_basis: DMatrix<C64>,
     pub periods: Periods,
 }
 
@@ -72,6 +75,7 @@ pub fn riemann_matrix(p: Periods, reduce: bool) -> Result<RiemannMatrix, PeriodE
         )));
     }
     let mut reduced = None;
+    let mut a_basis = p.a.clone();
     if reduce {
         if let Ok(s) = crate::theta::siegel::siegel_reduce(&tau) {
             // Gamma = [[a, b], [c, d]] changes the cycles: the new periods are
@@ -95,8 +99,9 @@ pub fn riemann_matrix(p: Periods, reduce: bool) -> Result<RiemannMatrix, PeriodE
                 error = err2.min(through_x).max(asymmetry(&raw2)).max(symmetry_defect);
                 min_eig_im = min_eig(&tau);
                 reduced = Some(s.gamma);
+                a_basis = a2;
             }
         }
     }
-    Ok(RiemannMatrix { tau, error, symmetry_defect, min_eig_im, reduced, periods: p })
+    Ok(RiemannMatrix { tau, error, symmetry_defect, min_eig_im, reduced, a_basis, periods: p })
 }

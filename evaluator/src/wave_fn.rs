@@ -1,0 +1,423 @@
+//! The wave built-ins: `soliton`, `rational`, `theta_wave`, `krichever` (constructors) and
+//! `value`, `kp_residual`, `regular` (evaluations over points and regions).
+
+use crate::eval::{fail, Evaluator, Fail};
+use crate::num::Num;
+use crate::periods::shape::recognise;
+use crate::theta::ThetaContext;
+use crate::value::{Value, Valued};
+use crate::waves::rational::RationalWave;
+use crate::waves::soliton::Soliton;
+use crate::waves::theta_wave::{dubrovin_constants, ThetaWave};
+use crate::waves::{Wave, WaveKind, KP_FORM};
+use kelp_lang::ast::{Arg, AxisKind, Expr};
+use kelp_lang::{Code, Span};
+use num_complex::Complex64 as C64;
+use serde_json::{json, Value as J};
+use std::rc::Rc;
+
+/// Sample points per axis of a range written without `step`.
+pub const DEFAULT_SAMPLES: usize = 21;
+/// Largest number of sample points of one region.
+pub const MAX_POINTS: usize = 4_000_000;
+
+fn c2(c: C64) -> J {
+    json!([c.re, c.im])
+}
+
+pub fn wave_json(w: &Wave) -> J {
+    let mut o = json!({"kind": w.kind_name(), "origin": w.origin, "kp_form": KP_FORM});
+    match &w.kind {
+        WaveKind::Theta(t) => {
+            o["genus"] = json!(t.u.len());
+            o["u"] = J::Array(t.u.iter().map(|v| c2(*v)).collect());
+            o["v"] = J::Array(t.v.iter().map(|v| c2(*v)).collect());
+            o["w"] = J::Array(t.w.iter().map(|v| c2(*v)).collect());
+            o["c"] = c2(t.c);
+            o["shift"] = J::Array(t.shift.iter().map(|v| c2(*v)).collect());
+        }
+        WaveKind::Soliton(s) => {
+            o["kappa"] = json!(s.kappa);
+            o["k"] = json!(s.k);
+            o["terms"] = json!(s.terms());
+        }
+        WaveKind::Rational(r) => {
+            o["partition"] = json!(r.partition);
+            o["tau"] = json!(format!("{}", r.tau).replace('z', "t"));
+            o["exact_solution"] = json!(r.exact_solution);
+        }
+    }
+    o
+}
+
+/// The sample points of a region: x, y and t values (an axis not given is 0).
+pub struct Region {
+    pub x: Vec<f64>,
+    pub y: Vec<f64>,
+    pub t: Vec<f64>,
+}
+
+impl Region {
+    pub fn points(&self) -> usize {
+        self.x.len() * self.y.len() * self.t.len()
+    }
+}
+
+impl Evaluator<'_> {
+    fn keyword<'e>(args: &'e [Arg], name: &str) -> Option<&'e Expr> {
+        args.iter().find_map(|a| match a {
+            Arg::Keyword { name: n, value } if n.name == name => Some(value),
+            _ => None,
+        })
+    }
+
+    fn real(&mut self, e: &Expr, what: &str) -> Result<f64, Fail> {
+        match self.expr(e)?.value {
+            Value::Num(n) => n.to_real().ok_or_else(|| fail(Code::WrongKind, e.span, format!("{what} must be real"))),
+            _ => Err(fail(Code::WrongKind, e.span, format!("{what} must be a real number"))),
+        }
+    }
+
+    fn nums(&mut self, e: &Expr, what: &str) -> Result<Vec<Num>, Fail> {
+        match self.expr(e)?.value {
+            Value::Vector(v) => Ok(v),
+            Value::Num(n) => Ok(vec![n]),
+            _ => Err(fail(Code::WrongKind, e.span, format!("{what} must be a vector"))),
+        }
+    }
+
+    fn complex_vector(&mut self, e: &Expr, what: &str, g: usize) -> Result<Vec<C64>, Fail> {
+        let v = self.nums(e, what)?;
+        if v.len() != g {
+            return Err(fail(
+                Code::ShapeMismatch,
+                e.span,
+                format!("{what} needs {g} entries (the genus of the matrix); it has {}", v.len()),
+            ));
+        }
+        Ok(v.iter().map(Num::to_complex).collect())
+    }
+
+    pub(crate) fn region(&mut self, span: Span, args: &[Arg]) -> Result<Region, Fail> {
+        let mut r = Region { x: vec![0.0], y: vec![0.0], t: vec![0.0] };
+        for a in args {
+            let Arg::Axis(ax) = a else { continue };
+            let values = match &ax.kind {
+                AxisKind::Fixed(e) => vec![self.real(e, "an axis value")?],
+                AxisKind::Range { lo, hi, step } => {
+                    let (a, b) = (self.real(lo, "a range end")?, self.real(hi, "a range end")?);
+                    if !(b > a) {
+                        return Err(fail(
+                            Code::EvalFailed,
+                            ax.span,
+                            "a range must go from a smaller to a larger value",
+                        ));
+                    }
+                    let n = match step {
+                        Some(h) => {
+                            let h = self.real(h, "a step")?;
+                            if !(h > 0.0) {
+                                return Err(fail(Code::EvalFailed, ax.span, "a step must be positive"));
+                            }
+                            let n = ((b - a) / h + 1e-9).floor() + 1.0;
+                            if n > MAX_POINTS as f64 {
+                                return Err(fail(Code::BudgetExceeded, ax.span, format!("{n:.0} points on one axis")));
+                            }
+                            n as usize
+                        }
+                        None => DEFAULT_SAMPLES,
+                    };
+                    let h = if n > 1 { (b - a) / (n - 1) as f64 } else { 0.0 };
+                    (0..n).map(|k| a + h * k as f64).collect()
+                }
+            };
+            match ax.name.name.as_str() {
+                "x" => r.x = values,
+                "y" => r.y = values,
+                _ => r.t = values,
+            }
+        }
+        if r.points() > MAX_POINTS {
+            return Err(fail(
+                Code::BudgetExceeded,
+                span,
+                format!("the region has {} sample points; the limit is {MAX_POINTS}", r.points()),
+            ));
+        }
+        Ok(r)
+    }
+
+    pub(crate) fn wave_call(&mut self, span: Span, name: &str, args: &[Arg]) -> Result<Valued, Fail> {
+        let missing = |what: &str| fail(Code::MissingArgument, span, format!("`{name}` needs `{what}`"));
+        let wave = match name {
+            "soliton" => {
+                let ke = Self::keyword(args, "kappa").ok_or_else(|| missing("kappa"))?;
+                let ae = Self::keyword(args, "a").ok_or_else(|| missing("a"))?;
+                let kappa: Vec<f64> = self
+                    .nums(ke, "kappa")?
+                    .iter()
+                    .map(|n| n.to_real().ok_or_else(|| fail(Code::WrongKind, ke.span, "kappa must be real")))
+                    .collect::<Result<_, _>>()?;
+                let a = match self.expr(ae)?.value {
+                    Value::Matrix(m) => m,
+                    Value::Vector(v) => vec![v],
+                    _ => return Err(fail(Code::WrongKind, ae.span, "`a` must be a k x n matrix")),
+                };
+                let s = Soliton::new(&kappa, &a).map_err(|m| fail(Code::EvalFailed, ae.span, m))?;
+                let origin = format!("line soliton, Gr({}, {}), {} exponential terms", s.k, s.kappa.len(), s.terms());
+                Wave { kind: WaveKind::Soliton(s), origin }
+            }
+            "rational" => {
+                let pe = Self::keyword(args, "partition").ok_or_else(|| missing("partition"))?;
+                let parts: Vec<u32> = self
+                    .nums(pe, "partition")?
+                    .iter()
+                    .map(|n| match n {
+                        Num::Exact(q) if q.is_integer() && *q >= num_rational::BigRational::from_integer(0.into()) => {
+                            u32::try_from(q.to_integer()).ok()
+                        }
+                        _ => None,
+                    })
+                    .collect::<Option<_>>()
+                    .ok_or_else(|| fail(Code::WrongKind, pe.span, "a partition is a list of nonnegative integers"))?;
+                let higher: Vec<num_rational::BigRational> = match Self::keyword(args, "times") {
+                    None => vec![],
+                    Some(te) => self
+                        .nums(te, "times")?
+                        .into_iter()
+                        .map(|n| match n {
+                            Num::Exact(q) => Some(q),
+                            _ => None,
+                        })
+                        .collect::<Option<_>>()
+                        .ok_or_else(|| fail(Code::WrongKind, te.span, "higher times must be exact rationals"))?,
+                };
+                let r = RationalWave::new(&parts, &higher).map_err(|m| fail(Code::EvalFailed, pe.span, m))?;
+                let origin = format!(
+                    "rational solution, tau = s_{:?}(t1 = x, t2 = y, t3 = t{}) = {}",
+                    r.partition,
+                    if higher.is_empty() { String::new() } else { format!(", t4.. = {higher:?}") },
+                    format!("{}", r.tau).replace('z', "t")
+                );
+                Wave { kind: WaveKind::Rational(r), origin }
+            }
+            "theta_wave" => {
+                let te = args
+                    .iter()
+                    .find_map(|a| if let Arg::Positional(e) = a { Some(e) } else { None })
+                    .ok_or_else(|| missing("T"))?;
+                let Value::Matrix(m) = self.expr(te)?.value else {
+                    return Err(fail(Code::WrongKind, te.span, "`theta_wave` needs a Riemann matrix"));
+                };
+                let tau = crate::linalg::to_complex_matrix(&m);
+                let g = tau.nrows();
+                let ctx = ThetaContext::new(&tau, self.checked.settings.tolerance.max(1e-8))
+                    .map_err(|e| crate::theta_fn::theta_error(e, te.span))?;
+                let mut vecs = vec![];
+                for k in ["u", "v", "w"] {
+                    let e = Self::keyword(args, k).ok_or_else(|| missing(k))?;
+                    vecs.push(self.complex_vector(e, &format!("`{k}`"), g)?);
+                }
+                let ce = Self::keyword(args, "c").ok_or_else(|| missing("c"))?;
+                let c = match self.expr(ce)?.value {
+                    Value::Num(n) => n.to_complex(),
+                    _ => return Err(fail(Code::WrongKind, ce.span, "`c` must be a number")),
+                };
+                let shift = match Self::keyword(args, "shift") {
+                    Some(e) => self.complex_vector(e, "`shift`", g)?,
+                    None => vec![C64::new(0.0, 0.0); g],
+                };
+                let w = vecs.pop().unwrap();
+                let v = vecs.pop().unwrap();
+                let u = vecs.pop().unwrap();
+                let origin = format!("theta wave of genus {g} from explicit data");
+                Wave { kind: WaveKind::Theta(ThetaWave { ctx, u, v, w, shift, c, accuracy: 1e-14 }), origin }
+            }
+            _ => return self.krichever_call(span, args),
+        };
+        Ok(Valued { value: Value::Wave(Rc::new(wave)), error_bound: 0.0, reason: None })
+    }
+
+    fn krichever_call(&mut self, span: Span, args: &[Arg]) -> Result<Valued, Fail> {
+        let ce = args
+            .iter()
+            .find_map(|a| if let Arg::Positional(e) = a { Some(e) } else { None })
+            .ok_or_else(|| fail(Code::MissingArgument, span, "`krichever` needs a curve"))?;
+        let Value::Curve(c) = self.expr(ce)?.value else {
+            return Err(fail(Code::WrongKind, ce.span, "`krichever` needs a curve"));
+        };
+        let pe = Self::keyword(args, "at")
+            .ok_or_else(|| fail(Code::MissingArgument, span, "`krichever` needs a point `at = (x, y)`"))?;
+        let (xp, yp) = match self.expr(pe)?.value {
+            Value::Point { coords, projective: false } if coords.len() == 2 => {
+                (coords[0].to_complex(), coords[1].to_complex())
+            }
+            Value::Point { coords, projective: true } if coords.len() == 3 => {
+                let z = coords[2].to_complex();
+                if z.norm() == 0.0 {
+                    return Err(fail(
+                        Code::NotSupported,
+                        pe.span,
+                        "points at infinity are not supported yet for `krichever`; pick a finite point",
+                    ));
+                }
+                (coords[0].to_complex() / z, coords[1].to_complex() / z)
+            }
+            _ => return Err(fail(Code::WrongKind, pe.span, "`at` must be a point (x, y) or (x : y : z)")),
+        };
+        let Some(shape) = recognise(&c.equation.poly, c.equation.projective) else {
+            return Err(fail(
+                Code::NotSupported,
+                ce.span,
+                format!(
+                    "`krichever({})` is not supported yet: it needs the Riemann matrix, computed so far for curves y^m = f(x)",
+                    c.name
+                ),
+            ));
+        };
+        let r = self.riemann_matrix(&c, true, ce.span)?;
+        let (sx, sy) = if shape.swapped { (yp, xp) } else { (xp, yp) };
+        let k = crate::waves::krichever::krichever_superelliptic(&shape, &r, sx, sy)
+            .map_err(|m| fail(Code::EvalFailed, pe.span, format!("`krichever({})`: {m}", c.name)))?;
+        let (cc, _d, dres) =
+            dubrovin_constants(&r.tau, &k.u, &k.v, &k.w).map_err(|e| crate::theta_fn::theta_error(e, ce.span))?;
+        let g = k.u.len();
+        let shift = match Self::keyword(args, "shift") {
+            Some(e) => self.complex_vector(e, "`shift`", g)?,
+            None => vec![C64::new(0.0, 0.0); g],
+        };
+        let ctx = ThetaContext::new(&r.tau, 1e-8).map_err(|e| crate::theta_fn::theta_error(e, ce.span))?;
+        let origin = format!(
+            "Krichever's wave of `{}` at ({}, {}), local parameter {}; genus {g}, tau error {:.1e}{}; c = {} from Dubrovin's conditions (relative residual {:.1e})",
+            c.name,
+            crate::num::fmt_f64(xp.re),
+            crate::num::fmt_f64(yp.re),
+            k.local_parameter,
+            r.error,
+            if r.reduced.is_some() { ", Siegel-reduced" } else { "" },
+            Num::Complex(cc),
+            dres
+        );
+        let wave = Wave {
+            kind: WaveKind::Theta(ThetaWave { ctx, u: k.u, v: k.v, w: k.w, shift, c: cc, accuracy: 1e-14 }),
+            origin,
+        };
+        Ok(Valued { value: Value::Wave(Rc::new(wave)), error_bound: r.error, reason: None })
+    }
+
+    fn wave_arg(&mut self, args: &[Arg], span: Span, name: &str) -> Result<(Rc<Wave>, Span), Fail> {
+        let e = args
+            .iter()
+            .find_map(|a| if let Arg::Positional(e) = a { Some(e) } else { None })
+            .ok_or_else(|| fail(Code::MissingArgument, span, format!("`{name}` needs a wave")))?;
+        match self.expr(e)?.value {
+            Value::Wave(w) => Ok((w, e.span)),
+            _ => Err(fail(Code::WrongKind, e.span, format!("`{name}` needs a wave"))),
+        }
+    }
+
+    pub(crate) fn wave_eval(&mut self, span: Span, name: &str, args: &[Arg]) -> Result<Valued, Fail> {
+        let (w, wspan) = self.wave_arg(args, span, name)?;
+        match name {
+            "value" => {
+                let pos: Vec<&Expr> =
+                    args.iter().filter_map(|a| if let Arg::Positional(e) = a { Some(e) } else { None }).collect();
+                if pos.len() != 4 {
+                    return Err(fail(Code::MissingArgument, span, "`value` needs a wave and x, y, t"));
+                }
+                let (x, y, t) = (self.real(pos[1], "x")?, self.real(pos[2], "y")?, self.real(pos[3], "t")?);
+                let p = w.at(x, y, t).map_err(|m| fail(Code::EvalFailed, span, m))?;
+                let u = p.kp.u;
+                let err = 1e3 * p.tau_relative_error.max(f64::EPSILON) * (1.0 + u.norm());
+                let v = if u.im.abs() <= err { Num::Real(u.re) } else { Num::Complex(u) };
+                Ok(Valued {
+                    value: Value::Num(v),
+                    error_bound: err,
+                    reason: Some(format!("u of the {} wave", w.kind_name())),
+                })
+            }
+            "kp_residual" => {
+                if let WaveKind::Rational(r) = &w.kind {
+                    if r.exact_solution {
+                        return Ok(Valued {
+                            value: Value::Num(Num::int(0)),
+                            error_bound: 0.0,
+                            reason: Some(format!("exact: the Hirota form of {KP_FORM} vanishes identically for tau")),
+                        });
+                    }
+                }
+                let region = self.region(span, args)?;
+                let (mut worst, mut scale, mut floor) = (0.0f64, 0.0f64, 0.0f64);
+                let mut at = (0.0, 0.0, 0.0);
+                for &t in &region.t {
+                    for &y in &region.y {
+                        for &x in &region.x {
+                            let p = w.at(x, y, t).map_err(|m| fail(Code::EvalFailed, span, m))?;
+                            if p.kp.residual.norm() > worst {
+                                worst = p.kp.residual.norm();
+                                at = (x, y, t);
+                            }
+                            scale = scale.max(p.kp.scale);
+                            floor = floor.max(p.tau_relative_error);
+                        }
+                    }
+                }
+                let scaled = if scale > 0.0 { worst / scale } else { 0.0 };
+                Ok(Valued {
+                    value: Value::Num(Num::Real(scaled)),
+                    error_bound: 1e3 * floor.max(f64::EPSILON),
+                    reason: Some(format!(
+                        "largest |residual| {worst:.2e} at (x, y, t) = ({}, {}, {}) over {} points, divided by the largest term {scale:.3e}; KP form {KP_FORM}",
+                        crate::num::fmt_f64(at.0),
+                        crate::num::fmt_f64(at.1),
+                        crate::num::fmt_f64(at.2),
+                        region.points()
+                    )),
+                })
+            }
+            _ => {
+                // regular
+                if let WaveKind::Soliton(s) = &w.kind {
+                    let reason = match s.negative_minor() {
+                        Some(m) => format!(
+                            "the maximal minor Delta_{{{}}} = {} is negative (columns of kappa sorted increasingly), so tau changes sign somewhere",
+                            m.columns.iter().map(|c| (c + 1).to_string()).collect::<Vec<_>>().join(","),
+                            m.value
+                        ),
+                        None => "every maximal minor of A is >= 0 (Kodama–Williams): regular for all x, y, t".into(),
+                    };
+                    return Ok(Valued {
+                        value: Value::Bool(s.negative_minor().is_none()),
+                        error_bound: 0.0,
+                        reason: Some(reason),
+                    });
+                }
+                if !args.iter().any(|a| matches!(a, Arg::Axis(_))) {
+                    return Err(fail(
+                        Code::NotSupported,
+                        wspan,
+                        "`regular` is decided exactly for solitons; for other waves give a region to sample",
+                    ));
+                }
+                let region = self.region(span, args)?;
+                for &t in &region.t {
+                    for &y in &region.y {
+                        for &x in &region.x {
+                            if let Err(m) = w.at(x, y, t) {
+                                return Ok(Valued { value: Value::Bool(false), error_bound: 0.0, reason: Some(m) });
+                            }
+                        }
+                    }
+                }
+                Ok(Valued {
+                    value: Value::Bool(true),
+                    error_bound: 0.0,
+                    reason: Some(format!(
+                        "tau is nonzero at all {} sample points (sampled, not a proof between them)",
+                        region.points()
+                    )),
+                })
+            }
+        }
+    }
+}

@@ -1,0 +1,65 @@
+//! KP waves in kelp's form 3 u_yy + (u_xxx + 6 u u_x - 4 u_t)_x = 0 (conventions file):
+//! theta-function waves (from explicit data or Krichever's construction), line solitons
+//! and rational solutions. Each gives the Taylor series of F = log tau at a point to
+//! weighted degree 6, from which u and the residual come analytically.
+
+pub mod krichever;
+pub mod rational;
+pub mod series;
+pub mod soliton;
+pub mod theta_wave;
+
+#[cfg(test)]
+mod tests;
+
+use num_complex::Complex64 as C64;
+use series::{kp_point, KpPoint};
+
+/// The KP form every number refers to.
+pub const KP_FORM: &str = "3 u_yy + (u_xxx + 6 u u_x - 4 u_t)_x = 0";
+
+#[derive(Debug)]
+pub enum WaveKind {
+    Theta(theta_wave::ThetaWave),
+    Soliton(soliton::Soliton),
+    Rational(rational::RationalWave),
+}
+
+#[derive(Debug)]
+pub struct Wave {
+    pub kind: WaveKind,
+    /// How it was made ("Krichever's wave of reef at (0, 1), local parameter x - x_P", ...).
+    pub origin: String,
+}
+
+/// u and the residual at one point, with a relative error estimate of tau there.
+#[derive(Clone, Copy, Debug)]
+pub struct WavePoint {
+    pub kp: KpPoint,
+    pub tau_relative_error: f64,
+}
+
+impl Wave {
+    pub fn at(&self, x: f64, y: f64, t: f64) -> Result<WavePoint, String> {
+        let (s, err, c) = match &self.kind {
+            WaveKind::Theta(w) => {
+                let (s, e) = w.series(x, y, t).map_err(|e| e.to_string())?;
+                (s, e, w.c)
+            }
+            WaveKind::Soliton(w) => (w.series(x, y, t), 0.0, C64::new(0.0, 0.0)),
+            WaveKind::Rational(w) => (w.series(x, y, t), 0.0, C64::new(0.0, 0.0)),
+        };
+        let f = s
+            .log_normalised()
+            .ok_or_else(|| format!("tau vanishes at (x, y, t) = ({x}, {y}, {t}): u is singular there"))?;
+        Ok(WavePoint { kp: kp_point(&f, c), tau_relative_error: err })
+    }
+
+    pub fn kind_name(&self) -> &'static str {
+        match self.kind {
+            WaveKind::Theta(_) => "theta",
+            WaveKind::Soliton(_) => "soliton",
+            WaveKind::Rational(_) => "rational",
+        }
+    }
+}
