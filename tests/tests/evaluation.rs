@@ -203,3 +203,35 @@ fn curves_without_a_genus_say_why() {
         .iter()
         .any(|d| d.code == Code::ValueInfo && d.message.contains("`pair` has 2 singular point")));
 }
+
+#[test]
+fn waves_end_to_end() {
+    // An invented swell over a genus-2 curve, a regular and an irregular soliton (the second
+    // has Delta_{3,4} = -1 < 0; Kodama–Williams), and the rational wave of s_(2,1) = x^3/3 - t:
+    // at t = 0, u = 2 (log x^3/3)_xx = -6/x^2 (elementary).
+    let src = "curve reef: y^2 = x^5 - 3*x^2 + x + 4\n\
+               wave swell = krichever(reef, at = (0, 2))\n\
+               wave crossing = soliton(kappa = [-1, 0, 1], a = [[1, 1, 0], [0, 1, 1]])\n\
+               wave bad = soliton(kappa = [-1, 0, 1, 2], a = [[1, 0, -1, 0], [0, 1, 0, 1]])\n\
+               wave bump = rational(partition = [2, 1])\n\
+               expect kp_residual(swell, x in -2..2, y in -2..2, t = 0) < 1e-8\n\
+               expect regular(crossing)\n\
+               expect regular(bad)\n\
+               expect kp_residual(bump, x in -3..3, t = 0) == 0\n\
+               expect value(bump, 1, 0, 0) == -6 within 1e-9\n";
+    let r = run(src);
+    assert_eq!(r.passed, vec![Some(true), Some(true), Some(false), Some(true), Some(true)], "{:?}", r.messages);
+    assert!(r.messages.iter().any(|m| m.contains("Delta_{3,4} = -1")), "{:?}", r.messages);
+}
+
+#[test]
+fn wave_inputs_get_diagnostics() {
+    let src = "curve reef: y^2 = x^5 - 3*x^2 + x + 4\n\
+               wave off = krichever(reef, at = (0, 3))\n\
+               wave flat = soliton(kappa = [-1, 1], a = [[0, 0]])\n";
+    let r = run(src);
+    let errors: Vec<Code> = r.codes.iter().copied().filter(|c| *c != Code::ValueInfo).collect();
+    assert_eq!(errors, vec![Code::EvalFailed, Code::EvalFailed], "{:?}", r.messages);
+    assert!(r.messages.iter().any(|m| m.contains("not on the curve")));
+    assert!(r.messages.iter().any(|m| m.contains("full rank")));
+}
