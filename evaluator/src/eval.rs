@@ -15,8 +15,8 @@ use std::rc::Rc;
 pub enum Mode {
     /// Evaluate every value and claim; write nothing.
     Check,
-    /// Also write samples and plots.
-    Run,
+    /// Also write samples and plots, with paths relative to `base` (the file's folder).
+    Run { base: std::path::PathBuf },
 }
 
 #[derive(Clone, Debug)]
@@ -120,21 +120,21 @@ impl Evaluator<'_> {
                 Err(f) => self.report(f, name.span, &format!("`{}` is", name.name)),
             },
             StmtKind::Expect { claim, within } => self.expect(stmt.span, claim, within.as_ref()),
-            StmtKind::Output { kind, wave, .. } => {
-                if *mode == Mode::Run {
-                    let f = match self.env.get(&wave.name) {
-                        None => Fail::Dep(wave.name.clone()),
-                        Some(_) => fail(
-                            Code::NotSupported,
-                            stmt.span,
-                            format!("`{}` is not available yet: KP waves are not computed yet", kind.keyword()),
-                        ),
-                    };
-                    self.report(f, stmt.span, &format!("`{}`", kind.keyword()));
+            StmtKind::Output { kind, wave, region, path } => {
+                if let Mode::Run { base } = mode {
+                    match self.output(stmt.span, *kind, wave, region, path, base) {
+                        Ok(written) => self.out.outputs.extend(written),
+                        Err(f) => self.report(f, stmt.span, &format!("`{}`", kind.keyword())),
+                    }
                 }
             }
             StmtKind::Set { .. } | StmtKind::Error => {}
         }
+    }
+
+    /// The value bound to a name, if it was computed.
+    pub(crate) fn env_value(&self, name: &str) -> Option<Value> {
+        self.env.get(name).map(|v| v.value.clone())
     }
 
     fn define(&mut self, name: &Ident, v: Valued) {

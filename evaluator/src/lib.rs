@@ -8,6 +8,7 @@ pub mod eval;
 pub mod json;
 pub mod linalg;
 pub mod num;
+pub mod output;
 pub mod periods;
 mod tau_fn;
 pub mod theta;

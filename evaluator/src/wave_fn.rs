@@ -10,7 +10,7 @@ use crate::waves::rational::RationalWave;
 use crate::waves::soliton::Soliton;
 use crate::waves::theta_wave::{dubrovin_constants, ThetaWave};
 use crate::waves::{Wave, WaveKind, KP_FORM};
-use kelp_lang::ast::{Arg, AxisKind, Expr};
+use kelp_lang::ast::{Arg, Axis, AxisKind, Expr, Ident, OutputKind, StrLit};
 use kelp_lang::{Code, Span};
 use num_complex::Complex64 as C64;
 use serde_json::{json, Value as J};
@@ -99,9 +99,15 @@ impl Evaluator<'_> {
     }
 
     pub(crate) fn region(&mut self, span: Span, args: &[Arg]) -> Result<Region, Fail> {
+        let axes: Vec<&Axis> =
+            args.iter().filter_map(|a| if let Arg::Axis(ax) = a { Some(ax) } else { None }).collect();
+        self.region_of(span, &axes, DEFAULT_SAMPLES)
+    }
+
+    /// The sample points of the axes; a range without `step` gets `default_n` points.
+    pub(crate) fn region_of(&mut self, span: Span, axes: &[&Axis], default_n: usize) -> Result<Region, Fail> {
         let mut r = Region { x: vec![0.0], y: vec![0.0], t: vec![0.0] };
-        for a in args {
-            let Arg::Axis(ax) = a else { continue };
+        for ax in axes {
             let values = match &ax.kind {
                 AxisKind::Fixed(e) => vec![self.real(e, "an axis value")?],
                 AxisKind::Range { lo, hi, step } => {
@@ -125,7 +131,7 @@ impl Evaluator<'_> {
                             }
                             n as usize
                         }
-                        None => DEFAULT_SAMPLES,
+                        None => default_n,
                     };
                     let h = if n > 1 { (b - a) / (n - 1) as f64 } else { 0.0 };
                     (0..n).map(|k| a + h * k as f64).collect()
@@ -419,5 +425,86 @@ impl Evaluator<'_> {
                 })
             }
         }
+    }
+}
+
+/// Points per axis of a `plot` range written without `step`.
+pub const PLOT_SAMPLES: usize = 200;
+
+impl Evaluator<'_> {
+    /// Writes a `sample` or `plot` and returns the paths written.
+    pub(crate) fn output(
+        &mut self,
+        span: Span,
+        kind: OutputKind,
+        wave: &Ident,
+        axes: &[Axis],
+        path: &StrLit,
+        base: &std::path::Path,
+    ) -> Result<Vec<String>, Fail> {
+        use crate::output::{grid::Grid, picture, sample, write};
+        let w = match self.env_value(&wave.name) {
+            None => return Err(Fail::Dep(wave.name.clone())),
+            Some(Value::Wave(w)) => w,
+            Some(other) => {
+                return Err(fail(Code::WrongKind, wave.span, format!("`{}` is {other}, not a wave", wave.name)))
+            }
+        };
+        let default_n = if kind == OutputKind::Plot { PLOT_SAMPLES } else { DEFAULT_SAMPLES };
+        let refs: Vec<&Axis> = axes.iter().collect();
+        let region = self.region_of(span, &refs, default_n)?;
+        let ext =
+            std::path::Path::new(&path.value).extension().and_then(|e| e.to_str()).unwrap_or("").to_ascii_lowercase();
+        let grid = Grid::evaluate(&w, region.x, region.y, region.t).map_err(|m| fail(Code::EvalFailed, span, m))?;
+        if grid.complex() {
+            self.out.diagnostics.push(kelp_lang::Diagnostic::info(
+                Code::ValueInfo,
+                wave.span,
+                format!("`{}` is complex-valued here (a complex solution of KP): outputs carry Re u, and Im u where the format allows", wave.name),
+            ));
+        }
+        let what = format!("the {} wave `{}`", w.kind_name(), wave.name);
+        let mut files: Vec<(String, Vec<u8>)> = vec![];
+        match (kind, ext.as_str()) {
+            (OutputKind::Sample, "csv") => files.push((path.value.clone(), sample::csv(&grid))),
+            (OutputKind::Sample, "json") => files.push((path.value.clone(), sample::json(&grid, wave_json(&w)))),
+            (OutputKind::Sample, "npy") => files.push((path.value.clone(), sample::npy(&grid))),
+            (OutputKind::Plot, "svg" | "png") => {
+                let frames = grid.t.len();
+                for it in 0..frames {
+                    let name = if frames == 1 {
+                        path.value.clone()
+                    } else {
+                        let p = std::path::Path::new(&path.value);
+                        let stem = p.file_stem().and_then(|s| s.to_str()).unwrap_or("frame");
+                        let file = format!("{stem}_t{it:03}.{ext}");
+                        p.parent().map_or(file.clone(), |d| d.join(&file).to_string_lossy().into_owned())
+                    };
+                    let bytes = if ext == "svg" {
+                        picture::svg(&grid, it, &what)
+                    } else {
+                        picture::png(&grid, it, &what).map_err(|m| fail(Code::EvalFailed, span, m))?
+                    };
+                    files.push((name, bytes));
+                }
+            }
+            _ => {
+                return Err(fail(
+                    Code::EvalFailed,
+                    path.span,
+                    format!(
+                        "`{}` cannot write `.{ext}` files (sample: .csv, .json, .npy; plot: .svg, .png)",
+                        kind.keyword()
+                    ),
+                ))
+            }
+        }
+        let mut written = vec![];
+        for (name, bytes) in files {
+            let target = write::resolve(base, &name).map_err(|m| fail(Code::EvalFailed, path.span, m))?;
+            write::atomic_write(&target, &bytes).map_err(|m| fail(Code::EvalFailed, path.span, m))?;
+            written.push(name);
+        }
+        Ok(written)
     }
 }

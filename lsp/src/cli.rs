@@ -80,7 +80,11 @@ pub fn run(args: &[String], out: &mut dyn Write, err: &mut dyn Write, color: boo
     let mut io = Io { out, err, color };
     let status = match cli.command {
         Command::Check { files, format, verbose } => io.evaluate_files(&files, format, verbose, Mode::Check),
-        Command::Run { file, format, verbose } => io.evaluate_files(&[file], format, verbose, Mode::Run),
+        Command::Run { file, format, verbose } => {
+            let base = file.parent().map(|p| if p.as_os_str().is_empty() { std::path::Path::new(".") } else { p });
+            let base = base.unwrap_or(std::path::Path::new(".")).to_path_buf();
+            io.evaluate_files(&[file], format, verbose, Mode::Run { base })
+        }
         Command::Fmt { files, check } => io.fmt(&files, check),
         Command::Lsp => Ok(crate::server::run()),
     };
