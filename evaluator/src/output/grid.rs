@@ -31,7 +31,7 @@ impl Grid {
             .map(|k| {
                 let (it, rest) = (k / (ny * nx), k % (ny * nx));
                 let (iy, ix) = (rest / nx, rest % nx);
-                wave.at(x[ix], y[iy], t[it]).map(|p| p.kp.u)
+                wave.u(x[ix], y[iy], t[it])
             })
             .collect();
         Ok(Grid { u: u?, x, y, t })

@@ -55,6 +55,24 @@ impl Wave {
         Ok(WavePoint { kp: kp_point(&f, c), tau_relative_error: err })
     }
 
+    /// u alone at a point: u = 2 (tau_xx / tau - (tau_x / tau)^2) + c from the x-jet of tau,
+    /// cheaper than the full series the residual needs (for samples and pictures).
+    pub fn u(&self, x: f64, y: f64, t: f64) -> Result<C64, String> {
+        let (j, c) = match &self.kind {
+            WaveKind::Theta(w) => (w.x_jet(x, y, t).map_err(|e| e.to_string())?, w.c),
+            WaveKind::Soliton(w) => {
+                let j = w.x_jet(x, y, t);
+                ([j[0], j[1], j[2]].map(|v| C64::new(v, 0.0)), C64::new(0.0, 0.0))
+            }
+            WaveKind::Rational(_) => return self.at(x, y, t).map(|p| p.kp.u),
+        };
+        if j[0].norm() == 0.0 || !j[0].re.is_finite() {
+            return Err(format!("tau vanishes at (x, y, t) = ({x}, {y}, {t}): u is singular there"));
+        }
+        let r1 = j[1] / j[0];
+        Ok(2.0 * (j[2] / j[0] - r1 * r1) + c)
+    }
+
     pub fn kind_name(&self) -> &'static str {
         match self.kind {
             WaveKind::Theta(_) => "theta",

@@ -27,6 +27,8 @@ pub struct Soliton {
     pub minors: Vec<Minor>,
     /// (sum of kappa, of kappa^2, of kappa^3, sign, log |coefficient|) of each nonzero term.
     terms: Vec<(f64, f64, f64, f64, f64)>,
+    /// Per term, the Taylor coefficients of exp(s1 x + s2 y + s3 t) (point-independent).
+    expansions: Vec<Series>,
 }
 
 fn det_exact(m: &mut [Vec<BigRational>]) -> BigRational {
@@ -165,7 +167,11 @@ impl Soliton {
         if terms.is_empty() {
             return Err("A does not have full rank: every maximal minor is zero".into());
         }
-        Ok(Soliton { kappa: sorted, order, k, minors, terms })
+        let expansions = terms
+            .iter()
+            .map(|&(s1, s2, s3, _, _)| Series::exponential(C64::new(s1, 0.0), C64::new(s2, 0.0), C64::new(s3, 0.0)))
+            .collect();
+        Ok(Soliton { kappa: sorted, order, k, minors, terms, expansions })
     }
 
     /// The first negative maximal minor, if any (regular exactly when there is none).
@@ -180,21 +186,32 @@ impl Soliton {
         self.terms.len()
     }
 
-    /// tau's Taylor series at (x, y, t), divided by the largest term's exponential.
-    pub fn series(&self, x: f64, y: f64, t: f64) -> Series {
+    /// Each term's weight at (x, y, t), divided by the largest (log-sum-exp).
+    fn weights(&self, x: f64, y: f64, t: f64) -> Vec<f64> {
         let logs: Vec<f64> = self.terms.iter().map(|&(s1, s2, s3, _, lc)| lc + s1 * x + s2 * y + s3 * t).collect();
         let top = logs.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+        self.terms.iter().zip(&logs).map(|(&(_, _, _, sign, _), l)| sign * (l - top).exp()).collect()
+    }
+
+    /// tau's Taylor series at (x, y, t), divided by the largest term's exponential.
+    pub fn series(&self, x: f64, y: f64, t: f64) -> Series {
         let mut s = Series::zero();
-        for (&(s1, s2, s3, sign, _), l) in self.terms.iter().zip(&logs) {
-            let w = sign * (l - top).exp();
-            if w.abs() < 1e-300 {
-                continue;
+        for (w, e) in self.weights(x, y, t).into_iter().zip(&self.expansions) {
+            if w.abs() >= 1e-300 {
+                s.add_scaled(C64::new(w, 0.0), e);
             }
-            s.add_scaled(
-                C64::new(w, 0.0),
-                &Series::exponential(C64::new(s1, 0.0), C64::new(s2, 0.0), C64::new(s3, 0.0)),
-            );
         }
         s
+    }
+
+    /// tau, tau_x, tau_xx at (x, y, t) (scaled alike), for u alone.
+    pub fn x_jet(&self, x: f64, y: f64, t: f64) -> [f64; 3] {
+        let mut j = [0.0; 3];
+        for (w, &(s1, _, _, _, _)) in self.weights(x, y, t).into_iter().zip(&self.terms) {
+            j[0] += w;
+            j[1] += w * s1;
+            j[2] += w * s1 * s1;
+        }
+        j
     }
 }

@@ -58,6 +58,20 @@ impl ThetaWave {
     }
 }
 
+impl ThetaWave {
+    /// theta, its first and second derivatives along U at (x, y, t) (exponential factor
+    /// divided out alike), for u alone.
+    pub fn x_jet(&self, x: f64, y: f64, t: f64) -> Result<[C64; 3], ThetaError> {
+        let z: Vec<C64> =
+            (0..self.u.len()).map(|k| self.shift[k] + self.u[k] * x + self.v[k] * y + self.w[k] * t).collect();
+        let monos = [vec![0], vec![1], vec![2]];
+        let (vals, _) = self.ctx.sums(&z, None, &[self.u.clone()], &monos, self.accuracy)?;
+        let f0 = vals[0].log_factor;
+        let s = |k: usize| vals[k].value * (vals[k].log_factor - f0).exp();
+        Ok([s(0), s(1), s(2)])
+    }
+}
+
 /// Least-squares (c, d) of Dubrovin's conditions and the relative residual.
 pub fn dubrovin_constants(tau: &DMatrix<C64>, u: &[C64], v: &[C64], w: &[C64]) -> Result<(C64, C64, f64), ThetaError> {
     let g = tau.nrows();
