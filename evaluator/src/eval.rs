@@ -15,8 +15,9 @@ use std::rc::Rc;
 pub enum Mode {
     /// Evaluate every value and claim; write nothing.
     Check,
-    /// Also write samples and plots, with paths relative to `base` (the file's folder).
-    Run { base: std::path::PathBuf },
+    /// Also write samples and plots, with paths relative to `base` (the file's folder);
+    /// with `only`, just the output statement of that index.
+    Run { base: std::path::PathBuf, only: Option<usize> },
 }
 
 #[derive(Clone, Debug)]
@@ -121,7 +122,10 @@ impl Evaluator<'_> {
             },
             StmtKind::Expect { claim, within } => self.expect(stmt.span, claim, within.as_ref()),
             StmtKind::Output { kind, wave, region, path } => {
-                if let Mode::Run { base } = mode {
+                if let Mode::Run { base, only } = mode {
+                    if only.is_some_and(|k| k != i) {
+                        return;
+                    }
                     match self.output(stmt.span, *kind, wave, region, path, base) {
                         Ok(written) => self.out.outputs.extend(written),
                         Err(f) => self.report(f, stmt.span, &format!("`{}`", kind.keyword())),

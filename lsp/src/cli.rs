@@ -83,7 +83,7 @@ pub fn run(args: &[String], out: &mut dyn Write, err: &mut dyn Write, color: boo
         Command::Run { file, format, verbose } => {
             let base = file.parent().map(|p| if p.as_os_str().is_empty() { std::path::Path::new(".") } else { p });
             let base = base.unwrap_or(std::path::Path::new(".")).to_path_buf();
-            io.evaluate_files(&[file], format, verbose, Mode::Run { base })
+            io.evaluate_files(&[file], format, verbose, Mode::Run { base, only: None })
         }
         Command::Fmt { files, check } => io.fmt(&files, check),
         Command::Lsp => Ok(crate::server::run()),

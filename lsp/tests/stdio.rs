@@ -188,3 +188,51 @@ fn an_editor_session_over_stdio() {
     assert!(shut.get("error").is_none());
     s.notify("exit", json!(null));
 }
+
+/// A code lens above `sample` writes that output through `kelp.write`, with a message naming
+/// the file; the file holds the wave's values (one soliton, u = 2 sech^2(x) at t = 0;
+/// conventions file).
+#[test]
+fn a_lens_writes_a_sample() {
+    let dir = std::env::temp_dir().join(format!("kelp-lsp-write-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    let file = dir.join("cove.kelp");
+    let text =
+        "wave w = soliton(kappa = [-1, 1], a = [[1, 1]])\nsample w over x in -1..1 step 1, t = 0 to \"out/w.csv\"\n";
+    std::fs::write(&file, text).unwrap();
+    let uri = format!("file://{}", file.display());
+    let mut s = Server::start();
+    let mut aside = Vec::new();
+    s.request("initialize", json!({"processId": null, "rootUri": null, "capabilities": {}}), &mut aside);
+    s.notify("initialized", json!({}));
+    s.notify(
+        "textDocument/didOpen",
+        json!({"textDocument": {"uri": uri, "languageId": "kelp", "version": 1, "text": text}}),
+    );
+    let lenses = s.request("textDocument/codeLens", json!({"textDocument": {"uri": uri}}), &mut aside);
+    let lens = lenses["result"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|l| l["command"]["command"] == "kelp.write")
+        .unwrap_or_else(|| panic!("no write lens in {lenses}"))
+        .clone();
+    assert_eq!(lens["command"]["title"], "write out/w.csv");
+    assert_eq!(lens["range"]["start"]["line"], 1);
+    let run = s.request(
+        "workspace/executeCommand",
+        json!({"command": "kelp.write", "arguments": lens["command"]["arguments"]}),
+        &mut aside,
+    );
+    assert_eq!(run["result"]["written"][0], "out/w.csv", "{run}");
+    let shown = s.wait_for(&mut aside, |m| m["method"] == "window/showMessage");
+    assert!(shown["params"]["message"].as_str().unwrap().contains("wrote out/w.csv"));
+    let csv = std::fs::read_to_string(dir.join("out/w.csv")).unwrap();
+    let row: Vec<f64> = csv.lines().nth(2).unwrap().split(',').map(|v| v.parse().unwrap()).collect();
+    assert!((row[3] - 2.0).abs() < 1e-14, "{csv}");
+    let shut = s.request("shutdown", json!(null), &mut aside);
+    assert!(shut.get("error").is_none());
+    s.notify("exit", json!(null));
+    let _ = std::fs::remove_dir_all(&dir);
+}

@@ -26,6 +26,8 @@ use tower_lsp_server::{Client, LanguageServer, LspService, Server};
 
 /// The command behind the code lenses: evaluate the file and report one value.
 const EVALUATE: &str = "kelp.evaluate";
+/// Writes one `sample` or `plot` (arguments: document URI, statement index).
+const WRITE: &str = "kelp.write";
 
 /// Pause after the last keystroke before evaluating.
 const DEBOUNCE: Duration = Duration::from_millis(150);
@@ -96,6 +98,57 @@ pub fn run() -> i32 {
 }
 
 impl Backend {
+    /// `kelp.write`: evaluates the document and writes the one output statement asked for,
+    /// inside the document's folder tree, with work-done progress and a message naming the file.
+    async fn write_output(&self, params: ExecuteCommandParams) -> Result<Option<LSPAny>> {
+        use tower_lsp_server::jsonrpc::Error;
+        let uri = params.arguments.first().and_then(|v| v.as_str()).map(str::to_string);
+        let index = params.arguments.get(1).and_then(|v| v.as_u64()).map(|v| v as usize);
+        let (Some(uri), Some(index)) = (uri, index) else {
+            return Err(Error::invalid_params("kelp.write takes a document URI and a statement index"));
+        };
+        let uri: Uri = uri.parse().map_err(|_| Error::invalid_params("not a URI"))?;
+        let Some(path) = uri.to_file_path() else {
+            return Err(Error::invalid_params("outputs are written only for documents on disk"));
+        };
+        let base = path.parent().map(|p| p.to_path_buf()).unwrap_or_default();
+        let text = {
+            let st = self.lock();
+            let Some(doc) = st.docs.get(&uri) else { return Err(Error::invalid_params("the document is not open")) };
+            doc.text.clone()
+        };
+        let progress = match params.work_done_progress_params.work_done_token {
+            Some(token) => Some(self.client.progress(token, "kelp: writing output".to_string()).begin().await),
+            None => None,
+        };
+        let job = tokio::task::spawn_blocking(move || {
+            std::panic::catch_unwind(|| {
+                let checked = kelp_lang::check(&text);
+                let e =
+                    kelp_evaluator::evaluate(&checked, &text, &kelp_evaluator::Mode::Run { base, only: Some(index) });
+                let errors: Vec<String> =
+                    e.diagnostics.iter().filter(|d| d.is_error()).map(|d| d.message.clone()).collect();
+                (e.outputs, errors)
+            })
+        });
+        let (message, written) = match tokio::time::timeout(EVAL_BUDGET, job).await {
+            Ok(Ok(Ok((outputs, errors)))) => {
+                if outputs.is_empty() {
+                    (format!("kelp wrote nothing: {}", errors.join("; ")), vec![])
+                } else {
+                    (format!("kelp wrote {}", outputs.join(", ")), outputs)
+                }
+            }
+            _ => (String::from("kelp: the output could not be written (evaluation failed or took too long)"), vec![]),
+        };
+        if let Some(p) = progress {
+            p.finish_with_message(message.clone()).await;
+        }
+        let kind = if written.is_empty() { MessageType::WARNING } else { MessageType::INFO };
+        self.client.show_message(kind, message).await;
+        Ok(Some(serde_json::json!({ "written": written })))
+    }
+
     fn lock(&self) -> std::sync::MutexGuard<'_, State> {
         // A panic elsewhere must not wedge the server: the state is still consistent.
         self.state.lock().unwrap_or_else(|e| e.into_inner())
@@ -228,7 +281,7 @@ impl LanguageServer for Backend {
                 inlay_hint_provider: Some(OneOf::Left(true)),
                 code_lens_provider: Some(CodeLensOptions { resolve_provider: Some(false) }),
                 execute_command_provider: Some(ExecuteCommandOptions {
-                    commands: vec![EVALUATE.to_string()],
+                    commands: vec![EVALUATE.to_string(), WRITE.to_string()],
                     ..Default::default()
                 }),
                 ..ServerCapabilities::default()
@@ -538,11 +591,30 @@ impl LanguageServer for Backend {
                 data: None,
             });
         }
+        // Above each `sample` and `plot`: write that output.
+        for (i, stmt) in doc.checked.program.stmts.iter().enumerate() {
+            if let kelp_lang::ast::StmtKind::Output { path, .. } = &stmt.kind {
+                let line = convert::position(&doc.index, stmt.span.start).line;
+                let at = Position { line, character: 0 };
+                lenses.push(CodeLens {
+                    range: Range { start: at, end: at },
+                    command: Some(Command {
+                        title: format!("write {}", path.value),
+                        command: WRITE.to_string(),
+                        arguments: Some(vec![serde_json::json!(uri.as_str()), serde_json::json!(i)]),
+                    }),
+                    data: None,
+                });
+            }
+        }
         Ok(Some(lenses))
     }
 
     async fn execute_command(&self, params: ExecuteCommandParams) -> Result<Option<LSPAny>> {
         use tower_lsp_server::jsonrpc::Error;
+        if params.command == WRITE {
+            return self.write_output(params).await;
+        }
         if params.command != EVALUATE {
             return Err(Error::invalid_params(format!("unknown command `{}`", params.command)));
         }
@@ -650,7 +722,7 @@ impl LanguageServer for Backend {
 
 /// "r x c" of a displayed matrix `[[a, b], [c, d]]`.
 fn size_of(display: &str) -> String {
-    let rows = display.matches("], [").count() + 1;
+    let rows = display.matches("],").count() + 1;
     let first = display.trim_start_matches('[').split(']').next().unwrap_or("");
     let cols = first.split(", ").count();
     format!("{rows} x {cols}")
