@@ -128,13 +128,17 @@ fn fmt_rewrites_and_checks() {
 }
 
 #[test]
-fn run_reports_outputs_it_cannot_write_yet() {
+fn run_writes_outputs_and_check_does_not() {
     let p = temp_file(
         "run.kelp",
         "wave w = soliton(kappa = [-1, 1], a = [[1, 1]])\nsample w over x in -1..1 step 0.5, t = 0 to \"out/w.csv\"\n",
     );
-    let (code, _, err) = kelp(&["run", p.to_str().unwrap()]);
-    assert_eq!(code, 1);
-    assert!(err.contains("K801"), "{err}");
-    assert!(!p.parent().unwrap().join("out/w.csv").exists(), "nothing made up is written");
+    let out = p.parent().unwrap().join("out/w.csv");
+    let _ = std::fs::remove_file(&out);
+    assert_eq!(kelp(&["check", p.to_str().unwrap()]).0, 0);
+    assert!(!out.exists(), "check writes nothing");
+    let (code, stdout, err) = kelp(&["run", p.to_str().unwrap()]);
+    assert_eq!(code, 0, "{err}");
+    assert!(stdout.contains("wrote out/w.csv"), "{stdout}");
+    assert_eq!(std::fs::read_to_string(&out).unwrap().lines().count(), 6, "header and five rows");
 }
