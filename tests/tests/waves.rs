@@ -156,3 +156,31 @@ fn krichever_waves_solve_kp_and_perturbed_ones_do_not() {
         }
     }
 }
+
+// A genus-1 theta wave whose W solves Dubrovin's conditions (computed by mpmath from
+// jtheta; the script also checks its KP residual): kelp's u at points agrees with mpmath's,
+// and kelp's own residual is at rounding level.
+#[test]
+fn genus_one_theta_wave_matches_mpmath() {
+    let d = doc();
+    let c = &d["theta_wave"];
+    let tau = (c["tau"][0].as_f64().unwrap(), c["tau"][1].as_f64().unwrap());
+    let w = (s(&c["w"][0]), s(&c["w"][1]));
+    let src = format!(
+        "wave g = theta_wave([[{} + {}i]], u = [{}], v = [{}], w = [{} + {}i], c = 0)\n",
+        tau.0,
+        tau.1,
+        c["u"].as_f64().unwrap(),
+        c["v"].as_f64().unwrap(),
+        w.0,
+        w.1
+    );
+    let e = eval(&src);
+    let g = wave(&e, "g");
+    for p in c["points"].as_array().unwrap() {
+        let r = g.at(num(&p["x"]), num(&p["y"]), num(&p["t"])).unwrap();
+        let want = C64::new(p["u"][0].as_f64().unwrap(), p["u"][1].as_f64().unwrap());
+        assert!((r.kp.u - want).norm() < 1e-10 * (1.0 + want.norm()), "{}: {} vs {want}", src, r.kp.u);
+        assert!(r.kp.residual.norm() < 1e-9 * r.kp.scale, "residual {}", r.kp.residual);
+    }
+}
