@@ -116,6 +116,66 @@ fn read_source(path: &Path) -> Result<(String, Option<Diagnostic>), String> {
     })
 }
 
+/// A progress bar on stderr for `kelp run` on a terminal: drawn only once sampling has run
+/// for half a second, from the grid counters the evaluator keeps, and erased at the end.
+struct ProgressBar {
+    stop: std::sync::Arc<std::sync::atomic::AtomicBool>,
+    thread: Option<std::thread::JoinHandle<()>>,
+}
+
+impl ProgressBar {
+    fn start() -> ProgressBar {
+        use kelp_evaluator::output::grid::{POINTS_DONE, POINTS_TOTAL};
+        use std::sync::atomic::Ordering;
+        let stop = std::sync::Arc::new(std::sync::atomic::AtomicBool::new(false));
+        let flag = stop.clone();
+        let (done0, total0) = (POINTS_DONE.load(Ordering::Relaxed), POINTS_TOTAL.load(Ordering::Relaxed));
+        let thread = std::thread::spawn(move || {
+            // The main thread holds the stderr lock for the whole run, so the bar writes to
+            // file descriptor 2 directly (unix) rather than through `eprint!`, which would
+            // wait for that lock forever.
+            #[cfg(unix)]
+            let mut tty = {
+                use std::os::fd::FromRawFd;
+                std::mem::ManuallyDrop::new(unsafe { std::fs::File::from_raw_fd(2) })
+            };
+            #[cfg(not(unix))]
+            let mut tty = std::mem::ManuallyDrop::new(std::io::sink());
+            let began = std::time::Instant::now();
+            let mut drawn = false;
+            while !flag.load(Ordering::Relaxed) {
+                std::thread::sleep(std::time::Duration::from_millis(100));
+                let total = POINTS_TOTAL.load(Ordering::Relaxed) - total0;
+                if total == 0 || began.elapsed() < std::time::Duration::from_millis(500) {
+                    continue;
+                }
+                let done = (POINTS_DONE.load(Ordering::Relaxed) - done0).min(total);
+                let filled = 30 * done / total;
+                let _ = write!(
+                    tty,
+                    "\r  sampling [{}{}] {done}/{total} points",
+                    "#".repeat(filled),
+                    ".".repeat(30 - filled)
+                );
+                drawn = true;
+            }
+            if drawn {
+                let _ = write!(tty, "\r{}\r", " ".repeat(72));
+            }
+        });
+        ProgressBar { stop, thread: Some(thread) }
+    }
+}
+
+impl Drop for ProgressBar {
+    fn drop(&mut self) {
+        self.stop.store(true, std::sync::atomic::Ordering::Relaxed);
+        if let Some(t) = self.thread.take() {
+            let _ = t.join();
+        }
+    }
+}
+
 struct Io<'a> {
     out: &'a mut dyn Write,
     err: &'a mut dyn Write,
@@ -133,7 +193,9 @@ impl Io<'_> {
             let shown = path.display().to_string();
             let (src, utf8) = read_source(path)?;
             let checked = check(&src);
+            let bar = (self.color && matches!(mode, Mode::Run { .. })).then(ProgressBar::start);
             let eval = evaluate(&checked, &src, &mode);
+            drop(bar);
             let mut diags: Vec<Diagnostic> = utf8
                 .into_iter()
                 .chain(checked.diagnostics.iter().cloned())

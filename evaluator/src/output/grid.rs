@@ -4,6 +4,12 @@
 use crate::waves::Wave;
 use num_complex::Complex64 as C64;
 use rayon::prelude::*;
+use std::sync::atomic::{AtomicUsize, Ordering};
+
+/// Grid points evaluated and asked for since the process started: a front end may poll
+/// them to draw a progress bar (the command line does, on a terminal).
+pub static POINTS_DONE: AtomicUsize = AtomicUsize::new(0);
+pub static POINTS_TOTAL: AtomicUsize = AtomicUsize::new(0);
 
 /// u on a grid, indexed [t][y][x].
 pub struct Grid {
@@ -26,12 +32,15 @@ impl Grid {
 
     pub fn evaluate(wave: &Wave, x: Vec<f64>, y: Vec<f64>, t: Vec<f64>) -> Result<Grid, String> {
         let (nx, ny) = (x.len(), y.len());
+        POINTS_TOTAL.fetch_add(t.len() * ny * nx, Ordering::Relaxed);
         let u: Result<Vec<C64>, String> = (0..t.len() * ny * nx)
             .into_par_iter()
             .map(|k| {
                 let (it, rest) = (k / (ny * nx), k % (ny * nx));
                 let (iy, ix) = (rest / nx, rest % nx);
-                wave.u(x[ix], y[iy], t[it])
+                let v = wave.u(x[ix], y[iy], t[it]);
+                POINTS_DONE.fetch_add(1, Ordering::Relaxed);
+                v
             })
             .collect();
         Ok(Grid { u: u?, x, y, t })
