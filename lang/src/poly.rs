@@ -100,6 +100,18 @@ impl Poly {
         }
         r
     }
+    /// The partial derivative with respect to variable `var` (0 = x, 1 = y, 2 = z).
+    pub fn derivative(&self, var: usize) -> Poly {
+        let mut r = Poly::zero();
+        for (m, v) in &self.terms {
+            if m[var] > 0 {
+                let mut m2 = *m;
+                m2[var] -= 1;
+                r.add_term(m2, v * BigRational::from_integer(m[var].into()));
+            }
+        }
+        r
+    }
     /// Power by repeated squaring. Callers bound `e * degree` first.
     pub fn pow(&self, mut e: u32) -> Poly {
         let mut base = self.clone();

@@ -56,12 +56,7 @@ fn main() {
 
     let mut s = Server::start();
     let mut aside = Vec::new();
-    s.request("initialize", json!({"processId": null, "rootUri": null, "capabilities": {}}), &mut aside);
-    s.notify("initialized", json!({}));
-    s.notify(
-        "textDocument/didOpen",
-        json!({"textDocument": {"uri": URI, "languageId": "kelp", "version": 1, "text": text}}),
-    );
+    s.open(URI, &text, &mut aside);
     let t_eval = Instant::now();
     s.wait_for(&mut aside, |m| {
         m["method"] == "textDocument/publishDiagnostics"

@@ -204,12 +204,7 @@ fn a_lens_writes_a_sample() {
     let uri = format!("file://{}", file.display());
     let mut s = Server::start();
     let mut aside = Vec::new();
-    s.request("initialize", json!({"processId": null, "rootUri": null, "capabilities": {}}), &mut aside);
-    s.notify("initialized", json!({}));
-    s.notify(
-        "textDocument/didOpen",
-        json!({"textDocument": {"uri": uri, "languageId": "kelp", "version": 1, "text": text}}),
-    );
+    s.open(&uri, text, &mut aside);
     let lenses = s.request("textDocument/codeLens", json!({"textDocument": {"uri": uri}}), &mut aside);
     let lens = lenses["result"]
         .as_array()

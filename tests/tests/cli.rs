@@ -1,18 +1,10 @@
 //! The command line in-process: exit codes, the JSON contract, fmt, samples.
 
+use kelp_tests::kelp;
 use std::path::PathBuf;
 
 fn root() -> PathBuf {
     PathBuf::from(env!("CARGO_MANIFEST_DIR")).parent().unwrap().to_path_buf()
-}
-
-/// Runs `kelp ARGS` in-process; returns (status, stdout, stderr).
-fn kelp(args: &[&str]) -> (i32, String, String) {
-    let mut argv = vec!["kelp".to_string()];
-    argv.extend(args.iter().map(|s| s.to_string()));
-    let (mut out, mut err) = (Vec::new(), Vec::new());
-    let code = kelp_lsp::cli::run(&argv, &mut out, &mut err, false);
-    (code, String::from_utf8(out).unwrap(), String::from_utf8(err).unwrap())
 }
 
 fn temp_file(name: &str, text: &str) -> PathBuf {

@@ -3,15 +3,8 @@
 //! the wave's own values; paths cannot leave the experiment's folder, also not through a
 //! symbolic link.
 
+use kelp_tests::kelp;
 use std::path::{Path, PathBuf};
-
-fn kelp(args: &[&str]) -> (i32, String, String) {
-    let mut argv = vec!["kelp".to_string()];
-    argv.extend(args.iter().map(|s| s.to_string()));
-    let (mut out, mut err) = (Vec::new(), Vec::new());
-    let code = kelp_lsp::cli::run(&argv, &mut out, &mut err, false);
-    (code, String::from_utf8(out).unwrap(), String::from_utf8(err).unwrap())
-}
 
 fn dir(name: &str) -> PathBuf {
     let d = std::env::temp_dir().join(format!("kelp-out-{}-{name}", std::process::id()));

@@ -65,25 +65,7 @@ fn q(n: i64) -> BigRational {
 }
 
 fn deriv(p: &Poly, var: usize) -> Poly {
-    let mut out = Poly::zero();
-    for (m, c) in &p.terms {
-        if m[var] > 0 {
-            let mut m2 = *m;
-            m2[var] -= 1;
-            out = out.add(&monomial(m2, c * q(m[var] as i64)));
-        }
-    }
-    out
-}
-
-fn monomial(m: [u32; 3], c: BigRational) -> Poly {
-    let mut p = Poly::constant(c);
-    for (i, &e) in m.iter().enumerate() {
-        if e > 0 {
-            p = p.mul(&Poly::var(i).pow(e));
-        }
-    }
-    p
+    p.derivative(var)
 }
 
 /// F(x + c y, y, z).

@@ -25,22 +25,8 @@ fn q(n: i64) -> BigRational {
     BigRational::from_integer(n.into())
 }
 
-fn deriv(p: &Poly, var: usize) -> Poly {
-    let mut out = Poly::zero();
-    for (m, c) in &p.terms {
-        if m[var] > 0 {
-            let mut m2 = *m;
-            m2[var] -= 1;
-            let mut t = Poly::zero();
-            t.terms.insert(m2, c * q(m[var] as i64));
-            out = out.add(&t);
-        }
-    }
-    out
-}
-
 fn d(p: &Poly, vars: &[usize]) -> Poly {
-    vars.iter().fold(p.clone(), |acc, &v| deriv(&acc, v))
+    vars.iter().fold(p.clone(), |acc, &v| acc.derivative(v))
 }
 
 /// Largest |lambda| accepted (the determinant's size grows quickly beyond).

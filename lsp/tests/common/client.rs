@@ -16,6 +16,18 @@ pub struct Server {
 }
 
 impl Server {
+    /// initialize, initialized, then didOpen of `text` at `uri` (version 1).
+    #[allow(dead_code)]
+    pub fn open(&mut self, uri: &str, text: &str, aside: &mut Vec<Value>) -> Value {
+        let init = self.request("initialize", json!({"processId": null, "rootUri": null, "capabilities": {}}), aside);
+        self.notify("initialized", json!({}));
+        self.notify(
+            "textDocument/didOpen",
+            json!({"textDocument": {"uri": uri, "languageId": "kelp", "version": 1, "text": text}}),
+        );
+        init
+    }
+
     /// The server's process id (for memory readings).
     pub fn pid(&self) -> u32 {
         self.child.id()
