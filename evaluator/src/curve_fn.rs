@@ -14,7 +14,7 @@ use std::rc::Rc;
 pub const MAX_ALGEBRA_DEGREE: u32 = 12;
 
 impl Evaluator<'_> {
-    fn facts(&mut self, c: &CurveValue, span: Span) -> Result<Rc<CurveFacts>, Fail> {
+    fn facts(&mut self, c: &CurveValue, span: Span) -> Result<std::sync::Arc<CurveFacts>, Fail> {
         let first_use = c.facts.get().is_none();
         let Some(f) = c.facts() else {
             return Err(fail(

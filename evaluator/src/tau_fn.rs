@@ -5,7 +5,7 @@
 use crate::eval::{fail, Evaluator, Fail};
 use crate::num::Num;
 use crate::periods::shape::recognise;
-use crate::periods::superelliptic::{periods, superelliptic_genus};
+use crate::periods::superelliptic::superelliptic_genus;
 use crate::periods::{riemann_matrix, PeriodError, RiemannMatrix};
 use crate::value::{CurveValue, Value, Valued};
 use kelp_lang::ast::Arg;
@@ -85,7 +85,7 @@ impl Evaluator<'_> {
         let accuracy = self.checked.settings.accuracy;
         let p = c
             .periods
-            .get_or_init(|| periods(shape.m, &shape.f, accuracy).map(Rc::new))
+            .get_or_init(|| crate::periods::periods_memo(shape.m, &shape.f, accuracy))
             .clone()
             .map_err(|e| period_fail(&e, span, &c.name))?;
         // Two independent genus computations must agree: the differentials counted here and

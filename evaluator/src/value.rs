@@ -10,21 +10,21 @@ pub struct CurveValue {
     pub name: String,
     pub equation: CurveEquation,
     /// Singular points and what follows from them, computed once on first use.
-    pub facts: std::cell::OnceCell<Rc<crate::algebra::curve::CurveFacts>>,
+    pub facts: std::cell::OnceCell<std::sync::Arc<crate::algebra::curve::CurveFacts>>,
     /// Periods for `tau`, computed on first use (at the file's one `accuracy`).
-    pub periods: std::cell::OnceCell<Result<Rc<crate::periods::Periods>, crate::periods::PeriodError>>,
+    pub periods: std::cell::OnceCell<Result<std::sync::Arc<crate::periods::Periods>, crate::periods::PeriodError>>,
 }
 
 impl CurveValue {
     /// The curve's singular points and genus facts, computed on first use and kept;
     /// `None` above the degree the exact algebra accepts.
-    pub fn facts(&self) -> Option<Rc<crate::algebra::curve::CurveFacts>> {
+    pub fn facts(&self) -> Option<std::sync::Arc<crate::algebra::curve::CurveFacts>> {
         if self.equation.degree > crate::curve_fn::MAX_ALGEBRA_DEGREE {
             return None;
         }
         Some(
             self.facts
-                .get_or_init(|| Rc::new(crate::algebra::curve::analyse(&self.equation.poly, self.equation.projective)))
+                .get_or_init(|| crate::algebra::curve::analyse_memo(&self.equation.poly, self.equation.projective))
                 .clone(),
         )
     }

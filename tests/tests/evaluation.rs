@@ -235,3 +235,22 @@ fn wave_inputs_get_diagnostics() {
     assert!(r.messages.iter().any(|m| m.contains("not on the curve")));
     assert!(r.messages.iter().any(|m| m.contains("full rank")));
 }
+
+#[test]
+fn editing_a_claim_reuses_the_riemann_matrix() {
+    // An editor re-evaluates the whole file on every edit: the periods of an unchanged
+    // curve come from the process-wide memo, so the second evaluation shares the first's.
+    let periods = |src: &str| {
+        let e = evaluated(src);
+        assert!(e.expectations.iter().all(|x| x.passed == Some(true)), "{:?}", e.diagnostics);
+        let c = e.values.iter().find_map(|v| match &v.value.value {
+            kelp_evaluator::Value::Curve(c) => Some(c.clone()),
+            _ => None,
+        });
+        c.unwrap().periods.get().unwrap().clone().unwrap()
+    };
+    let a = periods("curve memo_c: y^2 = x^5 - 7*x^3 + 2*x + 11\nlet t = tau(memo_c)\nexpect is_riemann(t)\n");
+    let b =
+        periods("curve memo_c: y^2 = x^5 - 7*x^3 + 2*x + 11\nlet t = tau(memo_c)\nexpect count(t) == 2  # edited\n");
+    assert!(std::sync::Arc::ptr_eq(&a, &b), "the second evaluation recomputed the periods");
+}

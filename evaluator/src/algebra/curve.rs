@@ -116,6 +116,27 @@ pub fn homogeneous(poly: &Poly, projective: bool) -> Poly {
     }
 }
 
+/// [`analyse`] once per equation per process (an editor re-evaluates the file on every
+/// edit; the singular points of an unchanged curve are not recomputed).
+pub fn analyse_memo(poly: &Poly, projective: bool) -> std::sync::Arc<CurveFacts> {
+    use std::collections::HashMap;
+    use std::sync::{Arc, Mutex, OnceLock};
+    static MEMO: OnceLock<Mutex<HashMap<(String, bool), Arc<CurveFacts>>>> = OnceLock::new();
+    let key = (poly.to_string(), projective);
+    let memo = MEMO.get_or_init(|| Mutex::new(HashMap::new()));
+    if let Some(hit) = memo.lock().ok().and_then(|g| g.get(&key).cloned()) {
+        return hit;
+    }
+    let facts = Arc::new(analyse(poly, projective));
+    if let Ok(mut g) = memo.lock() {
+        if g.len() >= 64 {
+            g.clear();
+        }
+        g.insert(key, facts.clone());
+    }
+    facts
+}
+
 pub fn analyse(poly: &Poly, projective: bool) -> CurveFacts {
     let f = homogeneous(poly, projective);
     let d = f.degree().unwrap_or(0);
