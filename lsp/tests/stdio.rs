@@ -231,3 +231,49 @@ fn a_lens_writes_a_sample() {
     s.notify("exit", json!(null));
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+/// Outputs land inside the workspace: with a workspace folder elsewhere, `kelp.write`
+/// writes nothing; once the document's folder is added as a workspace folder, it writes.
+#[test]
+fn writes_stay_inside_workspace_folders() {
+    let root = std::env::temp_dir().join(format!("kelp-lsp-ws-{}", std::process::id()));
+    let (inside, elsewhere) = (root.join("project"), root.join("elsewhere"));
+    let _ = std::fs::remove_dir_all(&root);
+    std::fs::create_dir_all(&inside).unwrap();
+    std::fs::create_dir_all(&elsewhere).unwrap();
+    let file = inside.join("cove.kelp");
+    let text = "wave w = soliton(kappa = [-1, 1], a = [[1, 1]])\nsample w over x in -1..1 step 1, t = 0 to \"w.csv\"\n";
+    std::fs::write(&file, text).unwrap();
+    let uri = format!("file://{}", file.display());
+    let folder = |p: &std::path::Path| json!({"uri": format!("file://{}", p.display()), "name": "f"});
+    let mut s = Server::start();
+    let mut aside = Vec::new();
+    let init = s.request(
+        "initialize",
+        json!({"processId": null, "rootUri": null, "capabilities": {}, "workspaceFolders": [folder(&elsewhere)]}),
+        &mut aside,
+    );
+    assert_eq!(init["result"]["capabilities"]["workspace"]["workspaceFolders"]["supported"], true);
+    s.notify("initialized", json!({}));
+    s.notify(
+        "textDocument/didOpen",
+        json!({"textDocument": {"uri": uri, "languageId": "kelp", "version": 1, "text": text}}),
+    );
+    let write = |s: &mut Server, aside: &mut Vec<Value>| {
+        s.request("workspace/executeCommand", json!({"command": "kelp.write", "arguments": [uri, 1]}), aside)
+    };
+    let refused = write(&mut s, &mut aside);
+    assert_eq!(refused["result"]["written"], json!([]), "{refused}");
+    assert!(!inside.join("w.csv").exists());
+    s.notify(
+        "workspace/didChangeWorkspaceFolders",
+        json!({"event": {"added": [folder(&inside)], "removed": [folder(&elsewhere)]}}),
+    );
+    let done = write(&mut s, &mut aside);
+    assert_eq!(done["result"]["written"][0], "w.csv", "{done}");
+    assert!(inside.join("w.csv").exists());
+    let shut = s.request("shutdown", json!(null), &mut aside);
+    assert!(shut.get("error").is_none());
+    s.notify("exit", json!(null));
+    let _ = std::fs::remove_dir_all(&root);
+}

@@ -60,6 +60,8 @@ struct State {
     /// Evaluations by the text's shape (tokens without comments), with the token spans
     /// of the text they were computed for.
     cache: HashMap<String, (Arc<EvalSummary>, Vec<Span>)>,
+    /// The workspace folders the client named (outputs are written only inside them).
+    folders: Vec<std::path::PathBuf>,
 }
 
 impl State {
@@ -112,11 +114,18 @@ impl Backend {
             return Err(Error::invalid_params("outputs are written only for documents on disk"));
         };
         let base = path.parent().map(|p| p.to_path_buf()).unwrap_or_default();
-        let text = {
+        let (text, folders) = {
             let st = self.lock();
             let Some(doc) = st.docs.get(&uri) else { return Err(Error::invalid_params("the document is not open")) };
-            doc.text.clone()
+            (doc.text.clone(), st.folders.clone())
         };
+        // Outputs land inside the workspace: a document outside every workspace folder the
+        // client named gets nothing written (no folders named: the document's own folder).
+        if !folders.is_empty() && !folders.iter().any(|f| path.starts_with(f)) {
+            let message = "kelp wrote nothing: the document is outside the workspace folders".to_string();
+            self.client.show_message(MessageType::WARNING, message).await;
+            return Ok(Some(serde_json::json!({ "written": [] })));
+        }
         let progress = match params.work_done_progress_params.work_done_token {
             Some(token) => Some(self.client.progress(token, "kelp: writing output".to_string()).begin().await),
             None => None,
@@ -249,7 +258,16 @@ fn word_at(text: &str, at: usize) -> Option<(usize, usize)> {
 }
 
 impl LanguageServer for Backend {
-    async fn initialize(&self, _: InitializeParams) -> Result<InitializeResult> {
+    async fn initialize(&self, params: InitializeParams) -> Result<InitializeResult> {
+        {
+            let mut st = self.lock();
+            #[allow(deprecated)]
+            let root = params.root_uri.iter().filter_map(|u| u.to_file_path().map(|p| p.to_path_buf())).collect();
+            st.folders = match &params.workspace_folders {
+                Some(f) => f.iter().filter_map(|w| w.uri.to_file_path().map(|p| p.to_path_buf())).collect(),
+                None => root,
+            };
+        }
         Ok(InitializeResult {
             server_info: Some(ServerInfo { name: "kelp".into(), version: Some(env!("CARGO_PKG_VERSION").into()) }),
             capabilities: ServerCapabilities {
@@ -280,6 +298,13 @@ impl LanguageServer for Backend {
                 )),
                 inlay_hint_provider: Some(OneOf::Left(true)),
                 code_lens_provider: Some(CodeLensOptions { resolve_provider: Some(false) }),
+                workspace: Some(WorkspaceServerCapabilities {
+                    workspace_folders: Some(WorkspaceFoldersServerCapabilities {
+                        supported: Some(true),
+                        change_notifications: Some(OneOf::Left(true)),
+                    }),
+                    file_operations: None,
+                }),
                 execute_command_provider: Some(ExecuteCommandOptions {
                     commands: vec![EVALUATE.to_string(), WRITE.to_string()],
                     ..Default::default()
@@ -292,6 +317,14 @@ impl LanguageServer for Backend {
 
     async fn shutdown(&self) -> Result<()> {
         Ok(())
+    }
+
+    async fn did_change_workspace_folders(&self, params: DidChangeWorkspaceFoldersParams) {
+        let mut st = self.lock();
+        let path = |w: &WorkspaceFolder| w.uri.to_file_path().map(|p| p.to_path_buf());
+        let removed: Vec<std::path::PathBuf> = params.event.removed.iter().filter_map(path).collect();
+        st.folders.retain(|f| !removed.contains(f));
+        st.folders.extend(params.event.added.iter().filter_map(path));
     }
 
     async fn did_open(&self, params: DidOpenTextDocumentParams) {
