@@ -16,6 +16,10 @@ use num_complex::Complex64 as C64;
 use serde_json::{json, Value as J};
 use std::rc::Rc;
 
+fn show_vector(v: &[C64]) -> String {
+    format!("[{}]", v.iter().map(|c| Num::Complex(*c).to_string()).collect::<Vec<_>>().join(", "))
+}
+
 /// Sample points per axis of a range written without `step`.
 pub const DEFAULT_SAMPLES: usize = 21;
 /// Largest number of sample points of one region.
@@ -241,7 +245,8 @@ impl Evaluator<'_> {
             }
             _ => return self.krichever_call(span, args),
         };
-        Ok(Valued { value: Value::Wave(Rc::new(wave)), error_bound: 0.0, reason: None })
+        let detail = format!("KP form {KP_FORM}");
+        Ok(Valued { value: Value::Wave(Rc::new(wave)), error_bound: 0.0, reason: Some(detail) })
     }
 
     fn krichever_call(&mut self, span: Span, args: &[Arg]) -> Result<Valued, Fail> {
@@ -304,11 +309,19 @@ impl Evaluator<'_> {
             Num::Complex(cc),
             dres
         );
+        let detail = format!(
+            "U = {}, V = {}, W = {}, c = {} (local parameter {}; KP form {KP_FORM})",
+            show_vector(&k.u),
+            show_vector(&k.v),
+            show_vector(&k.w),
+            Num::Complex(cc),
+            k.local_parameter
+        );
         let wave = Wave {
             kind: WaveKind::Theta(ThetaWave { ctx, u: k.u, v: k.v, w: k.w, shift, c: cc, accuracy: 1e-14 }),
             origin,
         };
-        Ok(Valued { value: Value::Wave(Rc::new(wave)), error_bound: r.error, reason: None })
+        Ok(Valued { value: Value::Wave(Rc::new(wave)), error_bound: r.error, reason: Some(detail) })
     }
 
     fn wave_arg(&mut self, args: &[Arg], span: Span, name: &str) -> Result<(Rc<Wave>, Span), Fail> {

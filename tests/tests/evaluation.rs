@@ -222,6 +222,11 @@ fn waves_end_to_end() {
     let r = run(src);
     assert_eq!(r.passed, vec![Some(true), Some(true), Some(false), Some(true), Some(true)], "{:?}", r.messages);
     assert!(r.messages.iter().any(|m| m.contains("Delta_{3,4} = -1")), "{:?}", r.messages);
+    // Hover-ready: the Krichever wave's U, V, W, c and local parameter.
+    let e = evaluated(src);
+    let swell = e.values.iter().find(|v| v.name == "swell").unwrap();
+    let why = swell.value.reason.as_deref().unwrap();
+    assert!(why.contains("U = [") && why.contains("W = [") && why.contains("local parameter x - x_P"), "{why}");
 }
 
 #[test]
