@@ -392,47 +392,45 @@ where
                 Expr { kind: ExprKind::Binary { op: BinOp::Pow, lhs: Box::new(base), rhs: Box::new(acc) }, span }
             },
         );
-        let unary = just(Token::Minus)
-            .map_with(|_, e| sp(e.span()))
-            .repeated()
-            .foldr_with(power, |s, operand, _| {
-                let span = s.join(operand.span);
-                Expr { kind: ExprKind::Unary { op: UnOp::Neg, operand: Box::new(operand) }, span }
-            })
-            .boxed();
-
+        // Binary operators by binding power (one Pratt loop instead of one combinator layer
+        // per precedence level, which dominated parse time): `or` < `and` < `not` <
+        // comparisons (non-associative) < `+ -` < `* /` < unary minus < `^` (in `power`).
+        use chumsky::pratt::{infix, left, none, prefix};
         fn bin(op: BinOp, lhs: Expr, rhs: Expr) -> Expr {
             let span = lhs.span.join(rhs.span);
             Expr { kind: ExprKind::Binary { op, lhs: Box::new(lhs), rhs: Box::new(rhs) }, span }
         }
-        let product = unary.clone().foldl(
-            choice((just(Token::Star).to(BinOp::Mul), just(Token::Slash).to(BinOp::Div))).then(unary).repeated(),
-            |l, (op, r)| bin(op, l, r),
-        );
-        let sum = product.clone().foldl(
-            choice((just(Token::Plus).to(BinOp::Add), just(Token::Minus).to(BinOp::Sub))).then(product).repeated(),
-            |l, (op, r)| bin(op, l, r),
-        );
-        let cmp_op = choice((
-            just(Token::EqEq).to(BinOp::Eq),
-            just(Token::NotEq).to(BinOp::Ne),
-            just(Token::Le).to(BinOp::Le),
-            just(Token::Ge).to(BinOp::Ge),
-            just(Token::Lt).to(BinOp::Lt),
-            just(Token::Gt).to(BinOp::Gt),
-        ));
-        let comparison = sum.clone().then(cmp_op.then(sum).or_not()).map(|(l, rest)| match rest {
-            None => l,
-            Some((op, r)) => bin(op, l, r),
-        });
-        let negation =
-            just(Token::Not).map_with(|_, e| sp(e.span())).repeated().foldr_with(comparison, |s, operand, _| {
-                let span = s.join(operand.span);
-                Expr { kind: ExprKind::Unary { op: UnOp::Not, operand: Box::new(operand) }, span }
-            });
-        let conj =
-            negation.clone().foldl(just(Token::And).ignore_then(negation).repeated(), |l, r| bin(BinOp::And, l, r));
-        conj.clone().foldl(just(Token::Or).ignore_then(conj).repeated(), |l, r| bin(BinOp::Or, l, r)).boxed()
+        fn un(op: UnOp, at: Span, operand: Expr) -> Expr {
+            let span = at.join(operand.span);
+            Expr { kind: ExprKind::Unary { op, operand: Box::new(operand) }, span }
+        }
+        let tok = |t: Token<'s>, op: BinOp| just(t).to(op);
+        power
+            .pratt((
+                prefix(7, just(Token::Minus).map_with(|_, e| sp(e.span())), |at, rhs, _| un(UnOp::Neg, at, rhs)),
+                infix(left(6), choice((tok(Token::Star, BinOp::Mul), tok(Token::Slash, BinOp::Div))), |l, op, r, _| {
+                    bin(op, l, r)
+                }),
+                infix(left(5), choice((tok(Token::Plus, BinOp::Add), tok(Token::Minus, BinOp::Sub))), |l, op, r, _| {
+                    bin(op, l, r)
+                }),
+                infix(
+                    none(4),
+                    choice((
+                        tok(Token::EqEq, BinOp::Eq),
+                        tok(Token::NotEq, BinOp::Ne),
+                        tok(Token::Le, BinOp::Le),
+                        tok(Token::Ge, BinOp::Ge),
+                        tok(Token::Lt, BinOp::Lt),
+                        tok(Token::Gt, BinOp::Gt),
+                    )),
+                    |l, op, r, _| bin(op, l, r),
+                ),
+                prefix(3, just(Token::Not).map_with(|_, e| sp(e.span())), |at, rhs, _| un(UnOp::Not, at, rhs)),
+                infix(left(2), just(Token::And), |l, _, r, _| bin(BinOp::And, l, r)),
+                infix(left(1), just(Token::Or), |l, _, r, _| bin(BinOp::Or, l, r)),
+            ))
+            .boxed()
     })
 }
 
