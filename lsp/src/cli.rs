@@ -22,11 +22,16 @@ struct Cli {
 enum Format {
     Human,
     Json,
+    /// SARIF 2.1.0 (code-scanning services).
+    Sarif,
+    /// JUnit XML (CI test reports): one test case per claim.
+    Junit,
 }
 
 #[derive(Subcommand)]
 enum Command {
-    /// Evaluate every value and claim; write no outputs.
+    /// Evaluate every value and claim; write no outputs. FILES may be files, folders
+    /// (every *.kelp below) or glob patterns.
     Check {
         #[arg(required = true)]
         files: Vec<PathBuf>,
@@ -35,6 +40,12 @@ enum Command {
         /// Also show information diagnostics and every computed value.
         #[arg(long, short)]
         verbose: bool,
+        /// Check only shard K of N (a fixed split by path, for parallel CI jobs).
+        #[arg(long, value_name = "K/N")]
+        shard: Option<String>,
+        /// Files evaluated at once (default: the machine's cores); reports keep file order.
+        #[arg(long, short)]
+        jobs: Option<usize>,
     },
     /// Evaluate like `check`, then write samples and plots.
     Run {
@@ -79,7 +90,12 @@ pub fn run(args: &[String], out: &mut dyn Write, err: &mut dyn Write, color: boo
     };
     let mut io = Io { out, err, color };
     let status = match cli.command {
-        Command::Check { files, format, verbose } => io.evaluate_files(&files, format, verbose, Mode::Check),
+        Command::Check { files, format, verbose, shard, jobs } => {
+            io.check_collection(&files, format, verbose, shard, jobs)
+        }
+        Command::Run { format: Format::Sarif | Format::Junit, .. } => {
+            Err("kelp: --format sarif and junit report `kelp check` runs; use human or json with `run`".to_string())
+        }
         Command::Run { file, format, verbose } => {
             let base = file.parent().map(|p| if p.as_os_str().is_empty() { std::path::Path::new(".") } else { p });
             let base = base.unwrap_or(std::path::Path::new(".")).to_path_buf();
@@ -98,7 +114,7 @@ pub fn run(args: &[String], out: &mut dyn Write, err: &mut dyn Write, color: boo
 }
 
 /// Reads a file as text; invalid UTF-8 is replaced and reported at its first byte.
-fn read_source(path: &Path) -> Result<(String, Option<Diagnostic>), String> {
+pub(crate) fn read_source(path: &Path) -> Result<(String, Option<Diagnostic>), String> {
     let bytes = std::fs::read(path).map_err(|e| format!("kelp: cannot read {}: {e}", path.display()))?;
     Ok(match String::from_utf8(bytes) {
         Ok(s) => (s, None),
@@ -185,6 +201,64 @@ struct Io<'a> {
 type Status = Result<i32, String>;
 
 impl Io<'_> {
+    fn check_collection(
+        &mut self,
+        inputs: &[PathBuf],
+        format: Format,
+        verbose: bool,
+        shard: Option<String>,
+        jobs: Option<usize>,
+    ) -> Status {
+        use crate::batch;
+        use rayon::prelude::*;
+        let mut files = batch::collect(inputs)?;
+        if let Some(s) = shard {
+            let sh = batch::parse_shard(&s)?;
+            files.retain(|f| batch::in_shard(f, sh));
+        }
+        let color = self.color && format == Format::Human;
+        let work = || -> Vec<Result<batch::Outcome, String>> {
+            files.par_iter().map(|f| batch::outcome(f, &Mode::Check, verbose, color)).collect()
+        };
+        let results = match jobs {
+            Some(n) => rayon::ThreadPoolBuilder::new()
+                .num_threads(n.max(1))
+                .build()
+                .map_err(|e| format!("kelp: cannot start {n} workers: {e}"))?
+                .install(work),
+            None => work(),
+        };
+        let outcomes: Vec<batch::Outcome> = results.into_iter().collect::<Result<_, _>>()?;
+        let w = |e: std::io::Error| format!("kelp: cannot write output: {e}");
+        let any_error = outcomes.iter().any(|o| o.any_error);
+        match format {
+            Format::Human => {
+                for o in &outcomes {
+                    write!(self.err, "{}", o.rendered).map_err(w)?;
+                    for line in &o.extra {
+                        writeln!(self.out, "{line}").map_err(w)?;
+                    }
+                    writeln!(self.out, "{}", o.summary).map_err(w)?;
+                }
+                if outcomes.len() > 1 {
+                    let failed = outcomes.iter().filter(|o| o.any_error).count();
+                    writeln!(self.out, "{} file(s), {failed} with errors", outcomes.len()).map_err(w)?;
+                }
+            }
+            Format::Json => {
+                let mut reports: Vec<serde_json::Value> = outcomes.into_iter().map(|o| o.json).collect();
+                let out = if reports.len() == 1 { reports.pop().unwrap() } else { serde_json::Value::Array(reports) };
+                writeln!(self.out, "{}", serde_json::to_string_pretty(&out).unwrap()).map_err(w)?;
+            }
+            Format::Sarif => {
+                writeln!(self.out, "{}", serde_json::to_string_pretty(&batch::sarif_log(&outcomes)).unwrap())
+                    .map_err(w)?;
+            }
+            Format::Junit => write!(self.out, "{}", batch::junit_log(&outcomes)).map_err(w)?,
+        }
+        Ok(i32::from(any_error))
+    }
+
     fn evaluate_files(&mut self, files: &[PathBuf], format: Format, verbose: bool, mode: Mode) -> Status {
         let mut reports = Vec::new();
         let mut any_error = false;

@@ -80,8 +80,10 @@ fn json_contract() {
     assert_eq!(e["passed"], false);
     assert!(e["detail"].as_str().unwrap().contains("q = 7/2"));
     assert!(j["outputs"].as_array().unwrap().is_empty());
-    // Several files: an array.
-    let (_, out, _) = kelp(&["check", "--format", "json", p.to_str().unwrap(), p.to_str().unwrap()]);
+    // Several files: an array (a file named twice is checked once).
+    let other = temp_file("contract2.kelp", "let a = 1\n");
+    let (_, out, _) =
+        kelp(&["check", "--format", "json", p.to_str().unwrap(), other.to_str().unwrap(), p.to_str().unwrap()]);
     let j: serde_json::Value = serde_json::from_str(&out).unwrap();
     assert_eq!(j.as_array().unwrap().len(), 2);
 }
@@ -133,4 +135,60 @@ fn run_writes_outputs_and_check_does_not() {
     assert_eq!(code, 0, "{err}");
     assert!(stdout.contains("wrote out/w.csv"), "{stdout}");
     assert_eq!(std::fs::read_to_string(&out).unwrap().lines().count(), 6, "header and five rows");
+}
+
+/// A collection: a folder with nested files (one with a failed claim and one with a syntax
+/// error), checked whole, by glob, in shards and with 1 or 2 workers.
+#[test]
+fn collections_shards_and_report_formats() {
+    let dir = std::env::temp_dir().join(format!("kelp-coll-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(dir.join("deep/er")).unwrap();
+    for k in 0..7 {
+        std::fs::write(dir.join(format!("ok{k}.kelp")), format!("let a = {k}\nexpect a + 1 == {}\n", k + 1)).unwrap();
+    }
+    std::fs::write(dir.join("deep/claim.kelp"), "let a = 2\nexpect a == 3\n").unwrap();
+    std::fs::write(dir.join("deep/er/syntax.kelp"), "let = 1\nexpect 1 == 1\n").unwrap();
+    std::fs::write(dir.join("deep/notes.txt"), "not an experiment").unwrap();
+    let d = dir.to_str().unwrap();
+    let (code, out, _) = kelp(&["check", d]);
+    assert_eq!(code, 1);
+    assert!(out.contains("9 file(s), 2 with errors"), "{out}");
+    let (_, by_glob, _) = kelp(&["check", &format!("{d}/**/*.kelp")]);
+    assert_eq!(by_glob, out, "a glob over the tree finds the same files");
+    // Shards partition the collection.
+    let mut seen = vec![];
+    for k in 1..=3 {
+        let (_, o, _) = kelp(&["check", d, "--shard", &format!("{k}/3"), "--format", "json"]);
+        let v: serde_json::Value = serde_json::from_str(&o).unwrap();
+        let files: Vec<String> = match v {
+            serde_json::Value::Array(a) => a.iter().map(|r| r["file"].as_str().unwrap().to_string()).collect(),
+            r if r.is_object() => vec![r["file"].as_str().unwrap().to_string()],
+            _ => vec![],
+        };
+        seen.extend(files);
+    }
+    seen.sort();
+    assert_eq!(seen.len(), 9);
+    seen.dedup();
+    assert_eq!(seen.len(), 9, "no file in two shards");
+    assert_eq!(kelp(&["check", d, "--shard", "4/3"]).0, 2);
+    // Same report with one or two workers.
+    let one = kelp(&["check", d, "--jobs", "1", "--format", "json"]).1;
+    let two = kelp(&["check", d, "--jobs", "2", "--format", "json"]).1;
+    assert_eq!(one, two);
+    // SARIF 2.1.0: the failed claim and the syntax error with 1-based lines.
+    let (_, sarif, _) = kelp(&["check", d, "--format", "sarif"]);
+    let v: serde_json::Value = serde_json::from_str(&sarif).unwrap();
+    assert_eq!(v["version"], "2.1.0");
+    let results = v["runs"][0]["results"].as_array().unwrap();
+    let claim = results.iter().find(|r| r["ruleId"] == "K701").expect("the failed claim");
+    assert_eq!(claim["locations"][0]["physicalLocation"]["region"]["startLine"], 2);
+    assert!(results.iter().any(|r| r["level"] == "error" && r["ruleId"].as_str().unwrap().starts_with("K1")));
+    // JUnit: one case per claim plus the checks case; the failed claim is a failure.
+    let (_, junit, _) = kelp(&["check", d, "--format", "junit"]);
+    assert!(junit.starts_with("<?xml") && junit.trim_end().ends_with("</testsuites>"));
+    assert_eq!(junit.matches("<testsuite ").count(), 9);
+    assert!(junit.contains("name=\"line 2: expect a == 3\"><failure"), "{junit}");
+    let _ = std::fs::remove_dir_all(&dir);
 }

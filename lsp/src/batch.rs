@@ -1,0 +1,216 @@
+//! `kelp check` over collections: folders and glob patterns expanded to a sorted file list,
+//! a deterministic shard of it, files evaluated in parallel, and reports in file order
+//! (so results are identical run to run and across thread counts) as human text, JSON,
+//! SARIF 2.1.0 or JUnit XML.
+
+use kelp_evaluator::{evaluate, json::file_report, Mode};
+use kelp_lang::{check, render::render, Diagnostic, Encoding, LineIndex, Severity};
+use serde_json::{json, Value as J};
+use std::path::{Path, PathBuf};
+
+/// Everything the report formats need from one file, as plain data (evaluations hold
+/// `Rc`s and stay inside their worker thread).
+pub struct Outcome {
+    pub rendered: String,
+    pub summary: String,
+    pub extra: Vec<String>,
+    pub json: J,
+    pub sarif: Vec<J>,
+    pub junit: String,
+    pub any_error: bool,
+}
+
+/// Files named directly, every `*.kelp` under a named folder (recursively), and the matches
+/// of glob patterns; sorted and without repeats.
+pub fn collect(inputs: &[PathBuf]) -> Result<Vec<PathBuf>, String> {
+    fn walk(dir: &Path, out: &mut Vec<PathBuf>) -> Result<(), String> {
+        let entries = std::fs::read_dir(dir).map_err(|e| format!("kelp: cannot read {}: {e}", dir.display()))?;
+        for entry in entries.flatten() {
+            let p = entry.path();
+            let hidden = p.file_name().and_then(|n| n.to_str()).is_some_and(|n| n.starts_with('.'));
+            if hidden {
+                continue;
+            }
+            if p.is_dir() {
+                walk(&p, out)?;
+            } else if p.extension().and_then(|e| e.to_str()) == Some("kelp") {
+                out.push(p);
+            }
+        }
+        Ok(())
+    }
+    let mut out = vec![];
+    for input in inputs {
+        let text = input.to_string_lossy();
+        if input.is_dir() {
+            walk(input, &mut out)?;
+        } else if !input.exists() && text.contains(['*', '?', '[']) {
+            let paths = glob::glob(&text).map_err(|e| format!("kelp: bad pattern {text}: {e}"))?;
+            let before = out.len();
+            out.extend(paths.flatten().filter(|p| p.is_file()));
+            if out.len() == before {
+                return Err(format!("kelp: no file matches {text}"));
+            }
+        } else {
+            out.push(input.clone());
+        }
+    }
+    out.sort();
+    out.dedup();
+    Ok(out)
+}
+
+/// `K/N` (1 <= K <= N).
+pub fn parse_shard(s: &str) -> Result<(u64, u64), String> {
+    let (k, n) = s.split_once('/').ok_or_else(|| format!("kelp: --shard takes K/N, not {s}"))?;
+    let (k, n): (u64, u64) =
+        (k.trim().parse().map_err(|_| "kelp: bad shard")?, n.trim().parse().map_err(|_| "kelp: bad shard")?);
+    if n == 0 || k == 0 || k > n {
+        return Err(format!("kelp: --shard {s}: need 1 <= K <= N"));
+    }
+    Ok((k, n))
+}
+
+/// Whether a file belongs to shard K of N: by a fixed hash (FNV-1a) of its path as given,
+/// so a file's shard does not change when other files are added.
+pub fn in_shard(path: &Path, (k, n): (u64, u64)) -> bool {
+    let mut h: u64 = 0xcbf2_9ce4_8422_2325;
+    for b in path.to_string_lossy().as_bytes() {
+        h ^= *b as u64;
+        h = h.wrapping_mul(0x0100_0000_01b3);
+    }
+    h % n == k - 1
+}
+
+fn xml(s: &str) -> String {
+    s.replace('&', "&amp;").replace('<', "&lt;").replace('>', "&gt;").replace('"', "&quot;")
+}
+
+/// Evaluates one file into an outcome.
+pub fn outcome(path: &Path, mode: &Mode, verbose: bool, color: bool) -> Result<Outcome, String> {
+    let shown = path.display().to_string();
+    let (src, utf8) = crate::cli::read_source(path)?;
+    let checked = check(&src);
+    let eval = evaluate(&checked, &src, mode);
+    let mut diags: Vec<Diagnostic> =
+        utf8.into_iter().chain(checked.diagnostics.iter().cloned()).chain(eval.diagnostics.iter().cloned()).collect();
+    kelp_lang::diag::sort(&mut diags);
+    let any_error = diags.iter().any(Diagnostic::is_error);
+    let visible: Vec<Diagnostic> =
+        diags.iter().filter(|d| verbose || d.severity <= Severity::Warning).cloned().collect();
+    let rendered = render(&shown, &src, &visible, color);
+    let mut extra = vec![];
+    if verbose {
+        for v in &eval.values {
+            let bound =
+                if v.value.error_bound > 0.0 { format!(" (± {:.1e})", v.value.error_bound) } else { String::new() };
+            extra.push(format!("  {} = {}{bound}", v.name, v.value.value));
+        }
+    }
+    let passed = eval.expectations.iter().filter(|e| e.passed == Some(true)).count();
+    let failed = eval.expectations.iter().filter(|e| e.passed == Some(false)).count();
+    let open = eval.expectations.len() - passed - failed;
+    let errors = diags.iter().filter(|d| d.is_error()).count();
+    let warnings = diags.iter().filter(|d| d.severity == Severity::Warning).count();
+    let verdict = if errors == 0 { "ok" } else { "FAILED" };
+    let summary = format!(
+        "{shown}: {verdict}: {passed} claim(s) passed, {failed} failed, {open} not decided; {errors} error(s), {warnings} warning(s)"
+    );
+    let outputs: Vec<String> = eval.outputs.iter().map(|o| format!("  wrote {o}")).collect();
+    extra.extend(outputs);
+    let json = file_report(&shown, &src, &diags, &eval);
+
+    // SARIF: one result per warning or error (information diagnostics are hover material).
+    let idx = LineIndex::new(&src);
+    let sarif = diags
+        .iter()
+        .filter(|d| d.severity <= Severity::Warning)
+        .map(|d| {
+            let (a, b) = (idx.line_col(d.span.start, Encoding::Utf16), idx.line_col(d.span.end, Encoding::Utf16));
+            json!({
+                "ruleId": d.code.as_str(),
+                "level": if d.is_error() { "error" } else { "warning" },
+                "message": {"text": d.message},
+                "locations": [{"physicalLocation": {
+                    "artifactLocation": {"uri": shown.replace('\\', "/")},
+                    "region": {
+                        "startLine": a.line + 1, "startColumn": a.character + 1,
+                        "endLine": b.line + 1, "endColumn": b.character + 1,
+                    },
+                }}],
+            })
+        })
+        .collect();
+
+    // JUnit: one test case per claim, plus one for the file's other errors.
+    let mut cases = String::new();
+    let mut failures = 0;
+    let mut skipped = 0;
+    for e in &eval.expectations {
+        let line = idx.line_col(e.span.start, Encoding::Utf16).line + 1;
+        let name = xml(src[e.span.range()].lines().next().unwrap_or(""));
+        let body = match e.passed {
+            Some(true) => String::new(),
+            Some(false) => {
+                failures += 1;
+                format!("<failure message=\"{}\"/>", xml(&e.detail))
+            }
+            None => {
+                skipped += 1;
+                format!("<skipped message=\"{}\"/>", xml(&e.detail))
+            }
+        };
+        cases.push_str(&format!(
+            "    <testcase classname=\"{}\" name=\"line {line}: {name}\">{body}</testcase>\n",
+            xml(&shown)
+        ));
+    }
+    let claim_spans: Vec<_> = eval.expectations.iter().map(|e| e.span).collect();
+    let other: Vec<&Diagnostic> = diags
+        .iter()
+        .filter(|d| d.is_error() && !claim_spans.iter().any(|s| s.start <= d.span.start && d.span.end <= s.end))
+        .collect();
+    let body = if other.is_empty() {
+        String::new()
+    } else {
+        failures += 1;
+        let text: Vec<String> = other.iter().map(|d| format!("{}: {}", d.code.as_str(), d.message)).collect();
+        format!("<failure message=\"{} error(s)\">{}</failure>", other.len(), xml(&text.join("\n")))
+    };
+    cases.push_str(&format!("    <testcase classname=\"{}\" name=\"checks\">{body}</testcase>\n", xml(&shown)));
+    let junit = format!(
+        "  <testsuite name=\"{}\" tests=\"{}\" failures=\"{failures}\" skipped=\"{skipped}\">\n{cases}  </testsuite>\n",
+        xml(&shown),
+        eval.expectations.len() + 1
+    );
+    Ok(Outcome { rendered, summary, extra, json, sarif, junit, any_error })
+}
+
+/// The SARIF 2.1.0 log of a run.
+pub fn sarif_log(outcomes: &[Outcome]) -> J {
+    let mut codes: Vec<&str> =
+        outcomes.iter().flat_map(|o| o.sarif.iter()).filter_map(|r| r["ruleId"].as_str()).collect();
+    codes.sort();
+    codes.dedup();
+    json!({
+        "version": "2.1.0",
+        "$schema": "https://json.schemastore.org/sarif-2.1.0.json",
+        "runs": [{
+            "tool": {"driver": {
+                "name": "kelp",
+                "version": env!("CARGO_PKG_VERSION"),
+                "rules": codes.iter().map(|c| json!({"id": c})).collect::<Vec<_>>(),
+            }},
+            "results": outcomes.iter().flat_map(|o| o.sarif.iter().cloned()).collect::<Vec<_>>(),
+        }],
+    })
+}
+
+pub fn junit_log(outcomes: &[Outcome]) -> String {
+    let mut s = String::from("<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n<testsuites name=\"kelp\">\n");
+    for o in outcomes {
+        s.push_str(&o.junit);
+    }
+    s.push_str("</testsuites>\n");
+    s
+}
