@@ -13,7 +13,10 @@ use std::path::{Path, PathBuf};
 pub struct Outcome {
     pub rendered: String,
     pub summary: String,
-    pub extra: Vec<String>,
+    /// Computed values (with --verbose), shown before the summary.
+    pub values: Vec<String>,
+    /// Files written (`kelp run`), shown after it.
+    pub written: Vec<String>,
     pub json: J,
     pub sarif: Vec<J>,
     pub junit: String,
@@ -99,12 +102,12 @@ pub fn outcome(path: &Path, mode: &Mode, verbose: bool, color: bool) -> Result<O
     let visible: Vec<Diagnostic> =
         diags.iter().filter(|d| verbose || d.severity <= Severity::Warning).cloned().collect();
     let rendered = render(&shown, &src, &visible, color);
-    let mut extra = vec![];
+    let mut values = vec![];
     if verbose {
         for v in &eval.values {
             let bound =
                 if v.value.error_bound > 0.0 { format!(" (± {:.1e})", v.value.error_bound) } else { String::new() };
-            extra.push(format!("  {} = {}{bound}", v.name, v.value.value));
+            values.push(format!("  {} = {}{bound}", v.name, v.value.value));
         }
     }
     let passed = eval.expectations.iter().filter(|e| e.passed == Some(true)).count();
@@ -116,8 +119,7 @@ pub fn outcome(path: &Path, mode: &Mode, verbose: bool, color: bool) -> Result<O
     let summary = format!(
         "{shown}: {verdict}: {passed} claim(s) passed, {failed} failed, {open} not decided; {errors} error(s), {warnings} warning(s)"
     );
-    let outputs: Vec<String> = eval.outputs.iter().map(|o| format!("  wrote {o}")).collect();
-    extra.extend(outputs);
+    let written: Vec<String> = eval.outputs.iter().map(|o| format!("  wrote {o}")).collect();
     let json = file_report(&shown, &src, &diags, &eval);
 
     // SARIF: one result per warning or error (information diagnostics are hover material).
@@ -183,7 +185,22 @@ pub fn outcome(path: &Path, mode: &Mode, verbose: bool, color: bool) -> Result<O
         xml(&shown),
         eval.expectations.len() + 1
     );
-    Ok(Outcome { rendered, summary, extra, json, sarif, junit, any_error })
+    Ok(Outcome { rendered, summary, values, written, json, sarif, junit, any_error })
+}
+
+impl Outcome {
+    /// The human report: diagnostics to `err`, values, the summary and written files to `out`.
+    pub fn write_human(&self, out: &mut dyn std::io::Write, err: &mut dyn std::io::Write) -> std::io::Result<()> {
+        write!(err, "{}", self.rendered)?;
+        for line in self.values.iter() {
+            writeln!(out, "{line}")?;
+        }
+        writeln!(out, "{}", self.summary)?;
+        for line in self.written.iter() {
+            writeln!(out, "{line}")?;
+        }
+        Ok(())
+    }
 }
 
 /// The SARIF 2.1.0 log of a run.

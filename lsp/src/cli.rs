@@ -2,8 +2,8 @@
 //! included), 2 usage or I/O errors.
 
 use clap::{Parser, Subcommand, ValueEnum};
-use kelp_evaluator::{evaluate, json::file_report, Mode};
-use kelp_lang::{check, render::render, Code, Diagnostic, Severity, Span};
+use kelp_evaluator::Mode;
+use kelp_lang::{Code, Diagnostic, Span};
 use std::io::{IsTerminal, Write};
 use std::path::{Path, PathBuf};
 
@@ -234,11 +234,7 @@ impl Io<'_> {
         match format {
             Format::Human => {
                 for o in &outcomes {
-                    write!(self.err, "{}", o.rendered).map_err(w)?;
-                    for line in &o.extra {
-                        writeln!(self.out, "{line}").map_err(w)?;
-                    }
-                    writeln!(self.out, "{}", o.summary).map_err(w)?;
+                    o.write_human(self.out, self.err).map_err(w)?;
                 }
                 if outcomes.len() > 1 {
                     let failed = outcomes.iter().filter(|o| o.any_error).count();
@@ -259,54 +255,20 @@ impl Io<'_> {
         Ok(i32::from(any_error))
     }
 
+    /// `kelp run`: one file at a time, with a progress bar while sampling on a terminal.
     fn evaluate_files(&mut self, files: &[PathBuf], format: Format, verbose: bool, mode: Mode) -> Status {
         let mut reports = Vec::new();
         let mut any_error = false;
         let w = |e: std::io::Error| format!("kelp: cannot write output: {e}");
         for path in files {
-            let shown = path.display().to_string();
-            let (src, utf8) = read_source(path)?;
-            let checked = check(&src);
             let bar = (self.color && matches!(mode, Mode::Run { .. })).then(ProgressBar::start);
-            let eval = evaluate(&checked, &src, &mode);
+            let o = crate::batch::outcome(path, &mode, verbose, self.color && format == Format::Human)?;
             drop(bar);
-            let mut diags: Vec<Diagnostic> = utf8
-                .into_iter()
-                .chain(checked.diagnostics.iter().cloned())
-                .chain(eval.diagnostics.iter().cloned())
-                .collect();
-            kelp_lang::diag::sort(&mut diags);
-            any_error |= diags.iter().any(Diagnostic::is_error);
+            any_error |= o.any_error;
             if format == Format::Json {
-                reports.push(file_report(&shown, &src, &diags, &eval));
-                continue;
-            }
-            let visible: Vec<Diagnostic> =
-                diags.iter().filter(|d| verbose || d.severity <= Severity::Warning).cloned().collect();
-            write!(self.err, "{}", render(&shown, &src, &visible, self.color)).map_err(w)?;
-            if verbose {
-                for v in &eval.values {
-                    let bound = if v.value.error_bound > 0.0 {
-                        format!(" (± {:.1e})", v.value.error_bound)
-                    } else {
-                        String::new()
-                    };
-                    writeln!(self.out, "  {} = {}{bound}", v.name, v.value.value).map_err(w)?;
-                }
-            }
-            let passed = eval.expectations.iter().filter(|e| e.passed == Some(true)).count();
-            let failed = eval.expectations.iter().filter(|e| e.passed == Some(false)).count();
-            let open = eval.expectations.len() - passed - failed;
-            let errors = diags.iter().filter(|d| d.is_error()).count();
-            let warnings = diags.iter().filter(|d| d.severity == Severity::Warning).count();
-            let verdict = if errors == 0 { "ok" } else { "FAILED" };
-            writeln!(
-                self.out,
-                "{shown}: {verdict}: {passed} claim(s) passed, {failed} failed, {open} not decided; {errors} error(s), {warnings} warning(s)"
-            )
-            .map_err(w)?;
-            for o in &eval.outputs {
-                writeln!(self.out, "  wrote {o}").map_err(w)?;
+                reports.push(o.json);
+            } else {
+                o.write_human(self.out, self.err).map_err(w)?;
             }
         }
         if format == Format::Json {
