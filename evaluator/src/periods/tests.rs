@@ -179,7 +179,7 @@ fn differential_count_is_the_genus() {
     }
 }
 
-/// Thomae's formula (Thomae 1870; Mumford, Tata Lectures on Theta II, IIIa.8): up to one
+/// Thomae's formula (J. Thomae, J. reine angew. Math. 71 (1870); cited from memory): up to one
 /// common factor, the even theta constants' eighth powers of y^2 = prod (x - e_k) are the
 /// squares of prod_{i<j in S} (e_i - e_j) prod_{i<j in S'} (e_i - e_j) over the splits of the
 /// branch points into two sets of g + 1 (infinity, for odd degree, left out of the products).
