@@ -92,6 +92,7 @@ codes! {
     UnclosedDelimiter = "K103": "a bracket or string is not closed",
     UnknownStatement = "K104": "a line does not start with a statement keyword",
     NumberTooLarge = "K105": "a literal is outside the supported size",
+    TooComplex = "K106": "a statement nested too deeply or too long to process safely",
 
     DuplicateName = "K201": "a name is defined twice",
     UndefinedName = "K202": "a name is used but never defined",

@@ -58,6 +58,44 @@ pub fn parse(src: &str) -> Parsed {
 
 type TokInput<'t, 's> = chumsky::input::MappedInput<'t, Token<'s>, SimpleSpan, &'t [(Token<'s>, SimpleSpan)]>;
 
+/// Brackets one statement may nest (deeper input would exhaust the stack of the parser,
+/// the checker or the evaluator, which recurse over the tree).
+pub const MAX_NESTING: usize = 256;
+/// Tokens one statement may hold (bounding the depth of operator chains likewise; a dense
+/// degree-64 equation needs about 20,000).
+pub const MAX_STATEMENT_TOKENS: usize = 40_000;
+
+/// A statement beyond the nesting or size limits: refused with a diagnostic at the token
+/// that crosses the limit, never parsed (so never a stack overflow).
+fn too_complex(group: &[(Token, SimpleSpan)]) -> Option<Diagnostic> {
+    if group.len() > MAX_STATEMENT_TOKENS {
+        return Some(Diagnostic::error(
+            Code::TooComplex,
+            sp(group[MAX_STATEMENT_TOKENS].1),
+            format!("this statement has {} tokens; the limit is {MAX_STATEMENT_TOKENS}", group.len()),
+        ));
+    }
+    let mut depth = 0usize;
+    // A run of prefix operators (`- - - x`, `not not x`) nests like brackets do.
+    let mut prefix_run = 0usize;
+    for &(t, span) in group {
+        match t {
+            Token::LParen | Token::LBracket => depth += 1,
+            Token::RParen | Token::RBracket => depth = depth.saturating_sub(1),
+            _ => {}
+        }
+        prefix_run = if matches!(t, Token::Minus | Token::Not | Token::Caret) { prefix_run + 1 } else { 0 };
+        if depth > MAX_NESTING || prefix_run > MAX_NESTING {
+            return Some(Diagnostic::error(
+                Code::TooComplex,
+                sp(span),
+                format!("expressions may nest at most {MAX_NESTING} deep"),
+            ));
+        }
+    }
+    None
+}
+
 /// Cuts the token stream into statements: index ranges into `tokens` that contain no
 /// line break outside brackets. Comments are collected on the way.
 fn split_statements(tokens: &[(Token, Span)], comments: &mut Vec<Comment>) -> Vec<std::ops::Range<usize>> {
@@ -131,6 +169,10 @@ where
         if matches!(first.0, Token::Ident(_)) && matches!(group.get(1), Some((Token::Eq, _))) {
             d = d.with_note(format!("to name a value, write `let {} = ...`", first.0.text()));
         }
+        diags.push(d);
+        return error;
+    }
+    if let Some(d) = too_complex(group) {
         diags.push(d);
         return error;
     }

@@ -74,7 +74,14 @@ pub fn main() -> i32 {
         return crate::server::run();
     }
     let color = std::io::stderr().is_terminal();
-    run(&args, &mut std::io::stdout().lock(), &mut std::io::stderr().lock(), color)
+    // On a thread with a large stack (see `STACK_BYTES`).
+    let work = std::thread::Builder::new()
+        .stack_size(crate::STACK_BYTES)
+        .spawn(move || run(&args, &mut std::io::stdout().lock(), &mut std::io::stderr().lock(), color));
+    match work.map(|h| h.join()) {
+        Ok(Ok(code)) => code,
+        _ => 2,
+    }
 }
 
 /// Runs the command line with these arguments (the first is the program name),
@@ -220,14 +227,11 @@ impl Io<'_> {
         let work = || -> Vec<Result<batch::Outcome, String>> {
             files.par_iter().map(|f| batch::outcome(f, &Mode::Check, verbose, color)).collect()
         };
-        let results = match jobs {
-            Some(n) => rayon::ThreadPoolBuilder::new()
-                .num_threads(n.max(1))
-                .build()
-                .map_err(|e| format!("kelp: cannot start {n} workers: {e}"))?
-                .install(work),
-            None => work(),
-        };
+        let mut pool = rayon::ThreadPoolBuilder::new().stack_size(crate::STACK_BYTES);
+        if let Some(n) = jobs {
+            pool = pool.num_threads(n.max(1));
+        }
+        let results = pool.build().map_err(|e| format!("kelp: cannot start the workers: {e}"))?.install(work);
         let outcomes: Vec<batch::Outcome> = results.into_iter().collect::<Result<_, _>>()?;
         let w = |e: std::io::Error| format!("kelp: cannot write output: {e}");
         let any_error = outcomes.iter().any(|o| o.any_error);

@@ -84,7 +84,14 @@ pub struct Backend {
 
 /// Serves on stdin/stdout until the client exits.
 pub fn run() -> i32 {
-    let rt = match tokio::runtime::Builder::new_multi_thread().worker_threads(2).enable_all().build() {
+    // Large stacks: the parser, checker and evaluator recurse over the syntax tree, whose
+    // depth the parser bounds (K106) at a size a 2 MiB default stack cannot hold.
+    let rt = match tokio::runtime::Builder::new_multi_thread()
+        .worker_threads(2)
+        .thread_stack_size(crate::STACK_BYTES)
+        .enable_all()
+        .build()
+    {
         Ok(rt) => rt,
         Err(e) => {
             eprintln!("kelp lsp: cannot start the runtime: {e}");
