@@ -89,6 +89,9 @@ pub fn run() -> i32 {
     let rt = match tokio::runtime::Builder::new_multi_thread()
         .worker_threads(2)
         .thread_stack_size(crate::STACK_BYTES)
+        // Superseded evaluations cannot be stopped mid-way; at most 16 run at once (more
+        // wait), which also bounds the address space the large stacks reserve.
+        .max_blocking_threads(16)
         .enable_all()
         .build()
     {
