@@ -63,7 +63,8 @@ pub struct Region {
 
 impl Region {
     pub fn points(&self) -> usize {
-        self.x.len() * self.y.len() * self.t.len()
+        // Saturating: three axes at the per-axis limit would overflow a 64-bit product.
+        self.x.len().saturating_mul(self.y.len()).saturating_mul(self.t.len())
     }
 }
 
@@ -151,7 +152,10 @@ impl Evaluator<'_> {
             return Err(fail(
                 Code::BudgetExceeded,
                 span,
-                format!("the region has {} sample points; the limit is {MAX_POINTS}", r.points()),
+                format!(
+                    "the region has {:.3e} sample points; the limit is {MAX_POINTS}",
+                    r.x.len() as f64 * r.y.len() as f64 * r.t.len() as f64
+                ),
             ));
         }
         Ok(r)
