@@ -7,6 +7,7 @@ pub mod curve_fn;
 pub mod eval;
 pub mod json;
 pub mod linalg;
+mod memo;
 pub mod num;
 pub mod output;
 pub mod periods;

@@ -64,10 +64,6 @@ fn q(n: i64) -> BigRational {
     BigRational::from_integer(BigInt::from(n))
 }
 
-fn deriv(p: &Poly, var: usize) -> Poly {
-    p.derivative(var)
-}
-
 /// F(x + c y, y, z).
 fn shear(f: &Poly, c: i64) -> Poly {
     if c == 0 {
@@ -119,22 +115,10 @@ pub fn homogeneous(poly: &Poly, projective: bool) -> Poly {
 /// [`analyse`] once per equation per process (an editor re-evaluates the file on every
 /// edit; the singular points of an unchanged curve are not recomputed).
 pub fn analyse_memo(poly: &Poly, projective: bool) -> std::sync::Arc<CurveFacts> {
-    use std::collections::HashMap;
-    use std::sync::{Arc, Mutex, OnceLock};
-    static MEMO: OnceLock<Mutex<HashMap<(String, bool), Arc<CurveFacts>>>> = OnceLock::new();
-    let key = (poly.to_string(), projective);
-    let memo = MEMO.get_or_init(|| Mutex::new(HashMap::new()));
-    if let Some(hit) = memo.lock().ok().and_then(|g| g.get(&key).cloned()) {
-        return hit;
-    }
-    let facts = Arc::new(analyse(poly, projective));
-    if let Ok(mut g) = memo.lock() {
-        if g.len() >= 64 {
-            g.clear();
-        }
-        g.insert(key, facts.clone());
-    }
-    facts
+    use crate::memo::Memo;
+    use std::sync::{Arc, OnceLock};
+    static MEMO: OnceLock<Memo<(String, bool), Arc<CurveFacts>>> = OnceLock::new();
+    MEMO.get_or_init(Memo::new).get_or((poly.to_string(), projective), || Arc::new(analyse(poly, projective)))
 }
 
 pub fn analyse(poly: &Poly, projective: bool) -> CurveFacts {
@@ -284,7 +268,7 @@ pub fn analyse(poly: &Poly, projective: bool) -> CurveFacts {
     }
 
     // Points at infinity (1 : y : 0) of the sheared curve.
-    let gi = at_infinity(&deriv(&g, 0)).gcd(&at_infinity(&deriv(&g, 1))).gcd(&at_infinity(&deriv(&g, 2)));
+    let gi = at_infinity(&g.derivative(0)).gcd(&at_infinity(&g.derivative(1))).gcd(&at_infinity(&g.derivative(2)));
     if gi.is_zero() {
         facts.non_reduced = true;
         return facts;

@@ -17,28 +17,16 @@ use nalgebra::DMatrix;
 use num_complex::Complex64 as C64;
 pub use superelliptic::{PeriodError, Periods};
 
-use std::collections::HashMap;
-use std::sync::{Arc, Mutex, OnceLock};
+use crate::memo::Memo;
+use std::sync::{Arc, OnceLock};
 
-/// Periods of y^m = f(x) at an accuracy, computed once per process and shared: an editor
-/// re-evaluates a file on every edit, and editing a claim or a comment must not recompute
-/// every Riemann matrix in it. Keyed by the exact equation; a few dozen entries at most.
+/// Periods of y^m = f(x) at an accuracy, computed once per process and shared: editing a
+/// claim or a comment must not recompute every Riemann matrix in the file.
 pub fn periods_memo(m: u32, f: &crate::algebra::upoly::UPoly, accuracy: f64) -> Result<Arc<Periods>, PeriodError> {
-    type Memo = Mutex<HashMap<(u32, String, u64), Result<Arc<Periods>, PeriodError>>>;
-    static MEMO: OnceLock<Memo> = OnceLock::new();
-    let key = (m, f.show("x"), accuracy.to_bits());
-    let memo = MEMO.get_or_init(|| Mutex::new(HashMap::new()));
-    if let Some(hit) = memo.lock().ok().and_then(|g| g.get(&key).cloned()) {
-        return hit;
-    }
-    let value = superelliptic::periods(m, f, accuracy).map(Arc::new);
-    if let Ok(mut g) = memo.lock() {
-        if g.len() >= 64 {
-            g.clear();
-        }
-        g.insert(key, value.clone());
-    }
-    value
+    type Key = (u32, String, u64);
+    static MEMO: OnceLock<Memo<Key, Result<Arc<Periods>, PeriodError>>> = OnceLock::new();
+    MEMO.get_or_init(Memo::new)
+        .get_or((m, f.show("x"), accuracy.to_bits()), || superelliptic::periods(m, f, accuracy).map(Arc::new))
 }
 
 #[derive(Clone, Debug)]

@@ -37,11 +37,15 @@ impl std::fmt::Debug for ThetaWave {
 }
 
 impl ThetaWave {
+    /// The argument of theta at (x, y, t): U x + V y + W t + D.
+    fn phase(&self, x: f64, y: f64, t: f64) -> Vec<C64> {
+        (0..self.u.len()).map(|k| self.shift[k] + self.u[k] * x + self.v[k] * y + self.w[k] * t).collect()
+    }
+
     /// theta's Taylor series at (x, y, t) (its exponential factor divided out) and a bound
     /// on the relative error of its constant term.
     pub fn series(&self, x: f64, y: f64, t: f64) -> Result<(Series, f64), ThetaError> {
-        let z: Vec<C64> =
-            (0..self.u.len()).map(|k| self.shift[k] + self.u[k] * x + self.v[k] * y + self.w[k] * t).collect();
+        let z = self.phase(x, y, t);
         let monos: Vec<Vec<u32>> = monomials().iter().map(|&(a, b, c)| vec![a, b, c]).collect();
         let dirs = [self.u.clone(), self.v.clone(), self.w.clone()];
         let (vals, _) = self.ctx.sums(&z, None, &dirs, &monos, self.accuracy)?;
@@ -56,14 +60,11 @@ impl ThetaWave {
         let rel = err / s.0[0].norm().max(1e-300);
         Ok((s, rel))
     }
-}
 
-impl ThetaWave {
     /// theta, its first and second derivatives along U at (x, y, t) (exponential factor
     /// divided out alike), for u alone.
     pub fn x_jet(&self, x: f64, y: f64, t: f64) -> Result<[C64; 3], ThetaError> {
-        let z: Vec<C64> =
-            (0..self.u.len()).map(|k| self.shift[k] + self.u[k] * x + self.v[k] * y + self.w[k] * t).collect();
+        let z = self.phase(x, y, t);
         let monos = [vec![0], vec![1], vec![2]];
         let (vals, _) = self.ctx.sums(&z, None, &[self.u.clone()], &monos, self.accuracy)?;
         let f0 = vals[0].log_factor;
