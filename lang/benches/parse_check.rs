@@ -30,6 +30,10 @@ static SOURCE: LazyLock<String> = LazyLock::new(|| {
     s
 });
 
+/// The allocator of the `kelp` binary, so the figures are the ones a user sees.
+#[global_allocator]
+static ALLOC: mimalloc::MiMalloc = mimalloc::MiMalloc;
+
 fn main() {
     divan::main();
 }

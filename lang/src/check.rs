@@ -5,7 +5,7 @@
 use crate::ast::*;
 use crate::builtins::{self, Builtin, ParamKind, RegionUse, Yields, SETTINGS};
 use crate::diag::{Code, Diagnostic};
-use crate::number::{parse_exact, to_f64};
+use crate::number::parse_exact;
 use crate::parser::parse;
 use crate::poly::Poly;
 use crate::span::Span;
@@ -132,9 +132,9 @@ pub fn check(src: &str) -> Checked {
     let parsed = parse(src);
     let mut c = Checker {
         diags: parsed.diagnostics,
-        symbols: Vec::new(),
-        by_name: HashMap::new(),
-        references: Vec::new(),
+        symbols: Vec::with_capacity(parsed.program.stmts.len()),
+        by_name: HashMap::with_capacity(parsed.program.stmts.len()),
+        references: Vec::with_capacity(parsed.program.stmts.len()),
         curves: HashMap::new(),
         settings: Settings::default(),
         broken: parsed.program.stmts.iter().map(|s| matches!(s.kind, StmtKind::Error)).collect(),
@@ -190,20 +190,17 @@ struct Checker {
     broken: Vec<bool>,
 }
 
-/// Counts errors pushed during `f`, to tell whether a statement stayed clean.
+/// Whether `$body` pushed no error, to tell whether a statement stayed clean (looking
+/// only at what it pushed, so a file with thousands of errors stays linear).
 macro_rules! clean {
     ($self:ident, $body:expr) => {{
-        let before = $self.error_count();
+        let before = $self.diags.len();
         $body;
-        $self.error_count() == before
+        !$self.diags[before..].iter().any(|d| d.is_error())
     }};
 }
 
 impl Checker {
-    fn error_count(&self) -> usize {
-        self.diags.iter().filter(|d| d.is_error()).count()
-    }
-
     fn error(&mut self, code: Code, span: Span, msg: impl Into<String>) -> &mut Diagnostic {
         self.diags.push(Diagnostic::error(code, span, msg));
         self.diags.last_mut().unwrap()
@@ -325,10 +322,10 @@ impl Checker {
                 clean!(self, self.check_curve(i, lhs, rhs.as_ref()))
             }
             StmtKind::Let { name, value } => {
-                let before = self.error_count();
-                let kind = self.infer(value);
+                let kind;
+                let ok = clean!(self, kind = self.infer(value));
                 self.set_kind(&name.name, kind);
-                self.error_count() == before
+                ok
             }
             StmtKind::Wave { value, .. } => clean!(self, {
                 let is_ctor = matches!(&value.kind, ExprKind::Call { func, .. }
@@ -356,10 +353,10 @@ impl Checker {
     // ---- curves ----
 
     fn check_curve(&mut self, i: usize, lhs: &Expr, rhs: Option<&Expr>) {
-        let poly = match (self.to_poly(lhs), rhs.map(|r| self.to_poly(r))) {
-            (Ok(l), None) => l,
-            (Ok(l), Some(Ok(r))) => l.sub(&r),
-            (Err(d), _) | (_, Some(Err(d))) => {
+        let fast = crate::small_poly::curve_poly(lhs, rhs).map(Ok);
+        let poly = match fast.unwrap_or_else(|| self.exact_curve_poly(lhs, rhs)) {
+            Ok(p) => p,
+            Err(d) => {
                 self.diags.push(d);
                 return;
             }
@@ -383,6 +380,16 @@ impl Checker {
             return;
         }
         self.curves.insert(i, CurveEquation { poly, projective, degree });
+    }
+
+    /// `lhs - rhs` with big rationals: the route for equations the 128-bit fast path
+    /// declines, and the one that words every diagnostic.
+    fn exact_curve_poly(&mut self, lhs: &Expr, rhs: Option<&Expr>) -> Result<Poly, Diagnostic> {
+        let l = self.to_poly(lhs)?;
+        match rhs {
+            Some(r) => Ok(l.sub(&self.to_poly(r)?)),
+            None => Ok(l),
+        }
     }
 
     fn to_poly(&mut self, e: &Expr) -> Result<Poly, Diagnostic> {
@@ -1066,7 +1073,8 @@ pub fn strip_parens(e: &Expr) -> &Expr {
 /// The value of a constant real expression made of literals and arithmetic.
 pub fn const_real(e: &Expr) -> Option<f64> {
     match &e.kind {
-        ExprKind::Number(t) => parse_exact(t).ok().map(|q| to_f64(&q)),
+        // Rust's float parsing rounds correctly, as the exact route would.
+        ExprKind::Number(t) => crate::number::literal_error(t).is_none().then(|| t.parse::<f64>().ok()).flatten(),
         ExprKind::Paren(i) => const_real(i),
         ExprKind::Unary { op: UnOp::Neg, operand } => const_real(operand).map(|v| -v),
         ExprKind::Binary { op, lhs, rhs } => {

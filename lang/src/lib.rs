@@ -2,6 +2,10 @@
 //! name resolution and static checks, the canonical formatter, and the one diagnostic
 //! type with its terminal rendering. Knows nothing of LSP or of evaluation.
 
+/// Stack size of every thread that parses, checks or evaluates: the tree is walked
+/// recursively, and statements may nest up to `parser::MAX_NESTING` deep.
+pub const STACK_BYTES: usize = 256 << 20;
+
 pub mod ast;
 pub mod builtins;
 pub mod check;
@@ -12,6 +16,7 @@ pub mod number;
 pub mod parser;
 pub mod poly;
 pub mod render;
+pub mod small_poly;
 pub mod span;
 pub mod suggest;
 

@@ -30,30 +30,73 @@ fn sp(s: SimpleSpan) -> Span {
 pub fn parse(src: &str) -> Parsed {
     let (tokens, mut diagnostics) = lex(src);
     let mut comments = Vec::new();
-    let groups = split_statements(&tokens, &mut comments);
-    // One pass: the trivia-free tokens of every statement, and where each one's run ends.
-    let mut sig: Vec<(Token, SimpleSpan)> = Vec::with_capacity(tokens.len());
-    let mut ends = Vec::with_capacity(groups.len());
-    for g in &groups {
-        sig.extend(
-            tokens[g.clone()]
-                .iter()
-                .filter(|(t, _)| !matches!(t, Token::Comment(_) | Token::Newline))
-                .map(|&(t, s)| (t, SimpleSpan::from(s.range()))),
-        );
-        ends.push(sig.len());
+    let (sig, ends) = split_statements(&tokens, &mut comments);
+    let stmts = parse_statements(&sig, &ends, &mut diagnostics);
+    Parsed { program: Program { stmts, comments }, diagnostics }
+}
+
+/// Files below this many tokens are parsed on the calling thread; above it the statements
+/// are cut into consecutive runs parsed on scoped threads (each statement stands alone,
+/// so the result is the same, in the same order).
+const PARALLEL_TOKENS: usize = 4096;
+
+fn parse_statements(sig: &[(Token, SimpleSpan)], ends: &[usize], diagnostics: &mut Vec<Diagnostic>) -> Vec<Stmt> {
+    let threads = std::thread::available_parallelism().map_or(1, |n| n.get()).min(4);
+    if threads < 2 || sig.len() < PARALLEL_TOKENS {
+        return parse_run(sig, 0, ends, diagnostics);
     }
+    // Cut `ends` where the token count passes each 1/threads share.
+    let mut cuts = vec![0];
+    for (k, &end) in ends.iter().enumerate() {
+        if end * threads >= sig.len() * cuts.len() && k + 1 < ends.len() {
+            cuts.push(k + 1);
+        }
+    }
+    cuts.push(ends.len());
+    let runs: Vec<(Vec<Stmt>, Vec<Diagnostic>)> = std::thread::scope(|scope| {
+        let handles: Vec<_> = cuts
+            .windows(2)
+            .map(|w| {
+                let (from, to) = (w[0], w[1]);
+                let start = if from == 0 { 0 } else { ends[from - 1] };
+                std::thread::Builder::new()
+                    .stack_size(crate::STACK_BYTES)
+                    .spawn_scoped(scope, move || {
+                        let mut diags = Vec::new();
+                        (parse_run(sig, start, &ends[from..to], &mut diags), diags)
+                    })
+                    .expect("spawning a parser thread")
+            })
+            .collect();
+        handles.into_iter().map(|h| h.join().unwrap_or_else(|p| std::panic::resume_unwind(p))).collect()
+    });
+    let mut stmts = Vec::with_capacity(ends.len());
+    for (s, d) in runs {
+        stmts.extend(s);
+        diagnostics.extend(d);
+    }
+    stmts
+}
+
+/// Parses the statements whose trivia-free tokens end at `ends`, the first one starting at
+/// `start` in `sig`.
+fn parse_run(
+    sig: &[(Token, SimpleSpan)],
+    start: usize,
+    ends: &[usize],
+    diagnostics: &mut Vec<Diagnostic>,
+) -> Vec<Stmt> {
     // Most statements are fine: parse with a cheap error type first, and only re-parse
     // a failing statement with rich errors to say what went wrong.
     let fast = stmt_parser::<TokInput, extra::Default>();
     let rich = stmt_parser::<TokInput, Extra>();
-    let mut stmts = Vec::with_capacity(groups.len());
-    let mut at = 0;
-    for end in ends {
-        stmts.push(parse_group(&fast, &rich, &sig[at..end], &mut diagnostics));
+    let mut stmts = Vec::with_capacity(ends.len());
+    let mut at = start;
+    for &end in ends {
+        stmts.push(parse_group(&fast, &rich, &sig[at..end], diagnostics));
         at = end;
     }
-    Parsed { program: Program { stmts, comments }, diagnostics }
+    stmts
 }
 
 type TokInput<'t, 's> = chumsky::input::MappedInput<'t, Token<'s>, SimpleSpan, &'t [(Token<'s>, SimpleSpan)]>;
@@ -96,14 +139,20 @@ fn too_complex(group: &[(Token, SimpleSpan)]) -> Option<Diagnostic> {
     None
 }
 
-/// Cuts the token stream into statements: index ranges into `tokens` that contain no
-/// line break outside brackets. Comments are collected on the way.
-fn split_statements(tokens: &[(Token, Span)], comments: &mut Vec<Comment>) -> Vec<std::ops::Range<usize>> {
-    let mut groups = Vec::new();
-    let mut start: Option<usize> = None;
+/// Cuts the token stream into statements in one pass: the trivia-free tokens of every
+/// statement in order, and where each statement's run of them ends. A statement ends at
+/// a line break outside brackets, or where a line starts with a statement keyword.
+/// Comments are collected on the way.
+#[allow(clippy::type_complexity)]
+fn split_statements<'s>(
+    tokens: &[(Token<'s>, Span)],
+    comments: &mut Vec<Comment>,
+) -> (Vec<(Token<'s>, SimpleSpan)>, Vec<usize>) {
+    let mut sig: Vec<(Token, SimpleSpan)> = Vec::with_capacity(tokens.len());
+    let mut ends = Vec::new();
     let mut depth = 0i32;
     let mut at_line_start = true;
-    for (i, &(tok, span)) in tokens.iter().enumerate() {
+    for &(tok, span) in tokens {
         match tok {
             Token::Comment(text) => {
                 comments.push(Comment { text: text.to_string(), span });
@@ -111,8 +160,8 @@ fn split_statements(tokens: &[(Token, Span)], comments: &mut Vec<Comment>) -> Ve
             }
             Token::Newline => {
                 if depth <= 0 {
-                    if let Some(s) = start.take() {
-                        groups.push(s..i);
+                    if ends.last() != Some(&sig.len()) && !sig.is_empty() {
+                        ends.push(sig.len());
                     }
                     depth = 0;
                 }
@@ -122,23 +171,23 @@ fn split_statements(tokens: &[(Token, Span)], comments: &mut Vec<Comment>) -> Ve
             _ => {}
         }
         if at_line_start && tok.starts_statement() {
-            if let Some(s) = start.take() {
-                groups.push(s..i);
+            if ends.last() != Some(&sig.len()) && !sig.is_empty() {
+                ends.push(sig.len());
             }
             depth = 0;
         }
         at_line_start = false;
-        start.get_or_insert(i);
+        sig.push((tok, SimpleSpan::from(span.range())));
         match tok {
             Token::LParen | Token::LBracket => depth += 1,
             Token::RParen | Token::RBracket => depth -= 1,
             _ => {}
         }
     }
-    if let Some(s) = start {
-        groups.push(s..tokens.len());
+    if ends.last() != Some(&sig.len()) && !sig.is_empty() {
+        ends.push(sig.len());
     }
-    groups
+    (sig, ends)
 }
 
 const STATEMENT_KEYWORDS: &str = "`set`, `curve`, `let`, `wave`, `expect`, `sample` or `plot`";
@@ -292,15 +341,28 @@ fn unescape(quoted: &str) -> String {
     out
 }
 
+/// A name as it stands in the source: no allocation, so alternatives that start with a
+/// name and then fail (a call, a keyword argument, an axis) cost nothing to try.
+fn raw_ident<'t, 's: 't, I, E>() -> impl Parser<'t, I, (&'s str, Span), E> + Clone + use<'t, 's, I, E>
+where
+    I: ValueInput<'t, Token = Token<'s>, Span = SimpleSpan>,
+    E: ParserExtra<'t, I> + 't,
+    E::Error: LabelError<'t, I, &'static str> + LabelError<'t, I, DefaultExpected<'t, Token<'s>>>,
+{
+    select! { Token::Ident(s) => s }.map_with(|s: &'s str, e| (s, sp(e.span()))).labelled("name")
+}
+
+fn to_ident((name, span): (&str, Span)) -> Ident {
+    Ident { name: name.to_string(), span }
+}
+
 fn ident<'t, 's: 't, I, E>() -> impl Parser<'t, I, Ident, E> + Clone + use<'t, 's, I, E>
 where
     I: ValueInput<'t, Token = Token<'s>, Span = SimpleSpan>,
     E: ParserExtra<'t, I> + 't,
     E::Error: LabelError<'t, I, &'static str> + LabelError<'t, I, DefaultExpected<'t, Token<'s>>>,
 {
-    select! { Token::Ident(s) => s }
-        .map_with(|s: &str, e| Ident { name: s.to_string(), span: sp(e.span()) })
-        .labelled("name")
+    raw_ident().map(to_ident)
 }
 
 /// `x in A..B [step H]`
@@ -311,14 +373,14 @@ where
     E: ParserExtra<'t, I> + 't,
     E::Error: LabelError<'t, I, &'static str> + LabelError<'t, I, DefaultExpected<'t, Token<'s>>>,
 {
-    ident()
+    raw_ident()
         .then_ignore(just(Token::In))
         .then(expr.clone())
         .then_ignore(just(Token::DotDot))
         .then(expr.clone())
         .then(just(Token::Step).ignore_then(expr).or_not())
         .map_with(|(((name, lo), hi), step), e| Axis {
-            name,
+            name: to_ident(name),
             kind: AxisKind::Range { lo, hi, step },
             span: sp(e.span()),
         })
@@ -332,8 +394,8 @@ where
     E: ParserExtra<'t, I> + 't,
     E::Error: LabelError<'t, I, &'static str> + LabelError<'t, I, DefaultExpected<'t, Token<'s>>>,
 {
-    let fixed = ident().then_ignore(just(Token::Eq)).then(expr.clone()).map_with(|(name, v), e| Axis {
-        name,
+    let fixed = raw_ident().then_ignore(just(Token::Eq)).then(expr.clone()).map_with(|(name, v), e| Axis {
+        name: to_ident(name),
         kind: AxisKind::Fixed(v),
         span: sp(e.span()),
     });
@@ -359,20 +421,22 @@ where
         .map_with(|kind, e| Expr { kind, span: sp(e.span()) })
         .labelled("value");
 
-        let keyword_arg =
-            ident().then_ignore(just(Token::Eq)).then(expr.clone()).map(|(name, value)| Arg::Keyword { name, value });
+        let keyword_arg = raw_ident()
+            .then_ignore(just(Token::Eq))
+            .then(expr.clone())
+            .map(|(name, value)| Arg::Keyword { name: to_ident(name), value });
         let range_arg = range_axis(expr.clone()).map(Arg::Axis);
         let arg = choice((range_arg, keyword_arg, expr.clone().map(Arg::Positional)));
-        let call = ident()
-            .then(
-                arg.separated_by(just(Token::Comma))
-                    .allow_trailing()
-                    .collect::<Vec<_>>()
-                    .delimited_by(just(Token::LParen), just(Token::RParen)),
-            )
-            .map_with(|(func, args), e| Expr { kind: ExprKind::Call { func, args }, span: sp(e.span()) });
-
-        let name = ident().map(|id| Expr { kind: ExprKind::Name(id.name), span: id.span });
+        let arg_list = arg
+            .separated_by(just(Token::Comma))
+            .allow_trailing()
+            .collect::<Vec<_>>()
+            .delimited_by(just(Token::LParen), just(Token::RParen));
+        // A name, or a call when an argument list follows: the name is read once.
+        let name_or_call = raw_ident().then(arg_list.or_not()).map_with(|(func, args), e| match args {
+            Some(args) => Expr { kind: ExprKind::Call { func: to_ident(func), args }, span: sp(e.span()) },
+            None => Expr { kind: ExprKind::Name(func.0.to_string()), span: func.1 },
+        });
 
         let list = expr
             .clone()
@@ -410,7 +474,7 @@ where
             },
         );
 
-        let atom = choice((literal, call, name, list, paren)).labelled("expression").boxed();
+        let atom = choice((literal, name_or_call, list, paren)).labelled("expression").boxed();
 
         // Exponents may be negated (`2^-1`); `-x^2` is `-(x^2)`; `a^b^c` is `a^(b^c)`.
         let neg_atom =
@@ -446,28 +510,23 @@ where
             let span = at.join(operand.span);
             Expr { kind: ExprKind::Unary { op, operand: Box::new(operand) }, span }
         }
-        let tok = |t: Token<'s>, op: BinOp| just(t).to(op);
+        // One `select!` per level: a single token test instead of a choice of `just`s.
+        let product = select! { Token::Star => BinOp::Mul, Token::Slash => BinOp::Div };
+        let sum = select! { Token::Plus => BinOp::Add, Token::Minus => BinOp::Sub };
+        let comparison = select! {
+            Token::EqEq => BinOp::Eq,
+            Token::NotEq => BinOp::Ne,
+            Token::Le => BinOp::Le,
+            Token::Ge => BinOp::Ge,
+            Token::Lt => BinOp::Lt,
+            Token::Gt => BinOp::Gt,
+        };
         power
             .pratt((
                 prefix(7, just(Token::Minus).map_with(|_, e| sp(e.span())), |at, rhs, _| un(UnOp::Neg, at, rhs)),
-                infix(left(6), choice((tok(Token::Star, BinOp::Mul), tok(Token::Slash, BinOp::Div))), |l, op, r, _| {
-                    bin(op, l, r)
-                }),
-                infix(left(5), choice((tok(Token::Plus, BinOp::Add), tok(Token::Minus, BinOp::Sub))), |l, op, r, _| {
-                    bin(op, l, r)
-                }),
-                infix(
-                    none(4),
-                    choice((
-                        tok(Token::EqEq, BinOp::Eq),
-                        tok(Token::NotEq, BinOp::Ne),
-                        tok(Token::Le, BinOp::Le),
-                        tok(Token::Ge, BinOp::Ge),
-                        tok(Token::Lt, BinOp::Lt),
-                        tok(Token::Gt, BinOp::Gt),
-                    )),
-                    |l, op, r, _| bin(op, l, r),
-                ),
+                infix(left(6), product, |l, op, r, _| bin(op, l, r)),
+                infix(left(5), sum, |l, op, r, _| bin(op, l, r)),
+                infix(none(4), comparison, |l, op, r, _| bin(op, l, r)),
                 prefix(3, just(Token::Not).map_with(|_, e| sp(e.span())), |at, rhs, _| un(UnOp::Not, at, rhs)),
                 infix(left(2), just(Token::And), |l, _, r, _| bin(BinOp::And, l, r)),
                 infix(left(1), just(Token::Or), |l, _, r, _| bin(BinOp::Or, l, r)),

@@ -5,6 +5,6 @@ mod batch;
 pub mod cli;
 pub mod server;
 
-/// Stack size of every thread that parses, checks or evaluates: the syntax tree may be as
-/// deep as the parser's limits allow (256 nested brackets, 40,000 tokens in a statement).
-pub const STACK_BYTES: usize = 256 << 20;
+/// Stack size of every thread that parses, checks or evaluates (one figure, kept in the
+/// language crate, which spawns parser threads of its own).
+pub use kelp_lang::STACK_BYTES;
