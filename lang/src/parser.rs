@@ -28,10 +28,15 @@ fn sp(s: SimpleSpan) -> Span {
 
 /// Parses a whole file. Never fails: broken statements become `StmtKind::Error`.
 pub fn parse(src: &str) -> Parsed {
+    let threads = std::thread::available_parallelism().map_or(1, |n| n.get()).min(4);
+    parse_on(src, threads)
+}
+
+fn parse_on(src: &str, threads: usize) -> Parsed {
     let (tokens, mut diagnostics) = lex(src);
     let mut comments = Vec::new();
     let (sig, ends) = split_statements(&tokens, &mut comments);
-    let stmts = parse_statements(&sig, &ends, &mut diagnostics);
+    let stmts = parse_statements(&sig, &ends, threads, &mut diagnostics);
     Parsed { program: Program { stmts, comments }, diagnostics }
 }
 
@@ -40,8 +45,12 @@ pub fn parse(src: &str) -> Parsed {
 /// so the result is the same, in the same order).
 const PARALLEL_TOKENS: usize = 4096;
 
-fn parse_statements(sig: &[(Token, SimpleSpan)], ends: &[usize], diagnostics: &mut Vec<Diagnostic>) -> Vec<Stmt> {
-    let threads = std::thread::available_parallelism().map_or(1, |n| n.get()).min(4);
+fn parse_statements(
+    sig: &[(Token, SimpleSpan)],
+    ends: &[usize],
+    threads: usize,
+    diagnostics: &mut Vec<Diagnostic>,
+) -> Vec<Stmt> {
     if threads < 2 || sig.len() < PARALLEL_TOKENS {
         return parse_run(sig, 0, ends, diagnostics);
     }
@@ -578,4 +587,31 @@ where
         .then(path)
         .map(|(((kind, wave), region), path)| StmtKind::Output { kind, wave, region, path });
     choice((set, curve, let_, wave, expect, output)).then_ignore(end())
+}
+
+#[cfg(test)]
+mod tests {
+    /// Statements parsed on several threads give the same tree and the same
+    /// diagnostics, in the same order, as on one.
+    #[test]
+    fn threads_do_not_change_the_result() {
+        let mut src = String::new();
+        for i in 0..1500 {
+            src.push_str(&match i % 5 {
+                0 => format!("curve c{i}: y^2 = x^3 - {i}*x + 1  # note {i}\n"),
+                1 => format!("let v{i} = theta([[1i]],\n  [0.{i}]) + 2\n"),
+                2 => format!("let broken{i} = (1 + \n"),
+                3 => format!("expect v{} == 2 within 1e-9\n", i - 2),
+                _ => format!("sample w over x in 0..1 step 0.5, t = {i} to \"out/{i}.csv\"\n"),
+            });
+        }
+        let one = super::parse_on(&src, 1);
+        assert!(src.len() / 3 > super::PARALLEL_TOKENS, "the input must take the threaded path");
+        for threads in [2, 3, 4] {
+            let many = super::parse_on(&src, threads);
+            assert_eq!(many.program, one.program);
+            assert_eq!(many.diagnostics, one.diagnostics);
+        }
+        assert_eq!(one.diagnostics.len(), 300);
+    }
 }
