@@ -395,7 +395,9 @@ impl Evaluator<'_> {
             }
             "theta" => self.theta_call(span, args),
             "tau" => self.tau_call(span, args),
-            "soliton" | "rational" | "theta_wave" | "krichever" => self.wave_call(span, &func.name, args),
+            "soliton" | "rational" | "theta_wave" | "krichever" | "shallow_water" => {
+                self.wave_call(span, &func.name, args)
+            }
             "value" | "kp_residual" | "regular" => self.wave_eval(span, &func.name, args),
             "j_invariant" => match first(self)? {
                 Valued { value: Value::Curve(c), .. } => self.curve_fact("j_invariant", &c, arg_span),

@@ -52,7 +52,7 @@ pub enum Value {
     Curve(Rc<CurveValue>),
     Point { coords: Vec<Num>, projective: bool },
     SingularPoint(Rc<SingularInfo>),
-    Wave(Rc<crate::waves::Wave>),
+    Wave(std::sync::Arc<crate::waves::Wave>),
 }
 
 /// A value with the bound on its numerical error (0 for exact values and literals).

@@ -11,10 +11,10 @@ use crate::waves::soliton::Soliton;
 use crate::waves::theta_wave::{dubrovin_constants, ThetaWave};
 use crate::waves::{Wave, WaveKind, KP_FORM};
 use kelp_lang::ast::{Arg, Axis, AxisKind, Expr, Ident, OutputKind, StrLit};
-use kelp_lang::{Code, Span};
+use kelp_lang::{Code, Diagnostic, Span};
 use num_complex::Complex64 as C64;
 use serde_json::{json, Value as J};
-use std::rc::Rc;
+use std::sync::Arc;
 
 fn show_vector(v: &[C64]) -> String {
     format!("[{}]", v.iter().map(|c| Num::Complex(*c).to_string()).collect::<Vec<_>>().join(", "))
@@ -49,6 +49,22 @@ pub fn wave_json(w: &Wave) -> J {
             o["partition"] = json!(r.partition);
             o["tau"] = json!(format!("{}", r.tau).replace('z', "t"));
             o["exact_solution"] = json!(r.exact_solution);
+        }
+        WaveKind::Water(water) => {
+            o["units"] = json!({"x": "m", "y": "m", "t": "s", "eta": "m"});
+            o["depth_m"] = json!(water.depth);
+            o["gravity_m_s2"] = json!(water.gravity);
+            o["epsilon"] = json!(water.epsilon);
+            o["c0_m_s"] = json!(water.c0);
+            o["mapping"] = json!({
+                "eta": format!("{} * u", water.eta_scale()),
+                "x": format!("(x_m - {} * t_s) / {}", water.c0, water.length),
+                "y": format!("y_m / {}", water.width),
+                "t": format!("t_s / ({})", water.time),
+                "equation": "dimensional KP-II, Ablowitz & Segur, J. Fluid Mech. 92 (1979)",
+            });
+            o["caution"] = json!(crate::waves::water::CAUTION);
+            o["wave"] = wave_json(&water.inner);
         }
     }
     o
@@ -247,10 +263,49 @@ impl Evaluator<'_> {
                 let origin = format!("theta wave of genus {g} from explicit data");
                 Wave { kind: WaveKind::Theta(ThetaWave { ctx, u, v, w, shift, c, accuracy: 1e-14 }), origin }
             }
+            "shallow_water" => return self.water_call(span, args),
             _ => return self.krichever_call(span, args),
         };
         let detail = format!("KP form {KP_FORM}");
-        Ok(Valued { value: Value::Wave(Rc::new(wave)), error_bound: 0.0, reason: Some(detail) })
+        Ok(Valued { value: Value::Wave(Arc::new(wave)), error_bound: 0.0, reason: Some(detail) })
+    }
+
+    /// `shallow_water(W, depth = h, epsilon = e [, gravity = g])`: W read as surface
+    /// elevation in metres over metres and seconds (`waves::water` derives the map).
+    fn water_call(&mut self, span: Span, args: &[Arg]) -> Result<Valued, Fail> {
+        use crate::waves::water::{Water, CAUTION, MAX_AMPLITUDE_RATIO};
+        let (inner, wspan) = self.wave_arg(args, span, "shallow_water")?;
+        let de = Self::keyword(args, "depth")
+            .ok_or_else(|| fail(Code::MissingArgument, span, "`shallow_water` needs `depth` (metres)"))?;
+        let ee = Self::keyword(args, "epsilon").ok_or_else(|| {
+            fail(Code::MissingArgument, span, "`shallow_water` needs `epsilon` (eta = epsilon * depth * u)")
+        })?;
+        let depth = self.real(de, "`depth`")?;
+        let epsilon = self.real(ee, "`epsilon`")?;
+        let gravity = match Self::keyword(args, "gravity") {
+            Some(ge) => self.real(ge, "`gravity`")?,
+            // Standard gravity (common practice, no source).
+            None => 9.80665,
+        };
+        let water = Water::new(inner, depth, gravity, epsilon).map_err(|m| fail(Code::EvalFailed, wspan, m))?;
+        let mut caution = Diagnostic::info(Code::ModelLimits, span, format!("physical units: {CAUTION}"));
+        if epsilon > MAX_AMPLITUDE_RATIO {
+            caution = Diagnostic::warning(
+                Code::ModelLimits,
+                ee.span,
+                format!(
+                    "epsilon = {} puts amplitudes of order {} of the depth: beyond the weakly nonlinear range (a few tenths) KP's predictions degrade",
+                    crate::num::fmt_f64(epsilon),
+                    crate::num::fmt_f64(epsilon)
+                ),
+            )
+            .with_note(CAUTION);
+        }
+        self.out.diagnostics.push(caution);
+        let detail = format!("{}; {CAUTION}", water.describe());
+        let origin = format!("{} read as shallow water ({})", water.inner.origin, water.describe());
+        let wave = Wave { kind: WaveKind::Water(water), origin };
+        Ok(Valued { value: Value::Wave(Arc::new(wave)), error_bound: 0.0, reason: Some(detail) })
     }
 
     fn krichever_call(&mut self, span: Span, args: &[Arg]) -> Result<Valued, Fail> {
@@ -325,10 +380,10 @@ impl Evaluator<'_> {
             kind: WaveKind::Theta(ThetaWave { ctx, u: k.u, v: k.v, w: k.w, shift, c: cc, accuracy: 1e-14 }),
             origin,
         };
-        Ok(Valued { value: Value::Wave(Rc::new(wave)), error_bound: r.error, reason: Some(detail) })
+        Ok(Valued { value: Value::Wave(Arc::new(wave)), error_bound: r.error, reason: Some(detail) })
     }
 
-    fn wave_arg(&mut self, args: &[Arg], span: Span, name: &str) -> Result<(Rc<Wave>, Span), Fail> {
+    fn wave_arg(&mut self, args: &[Arg], span: Span, name: &str) -> Result<(Arc<Wave>, Span), Fail> {
         let e = args
             .iter()
             .find_map(|a| if let Arg::Positional(e) = a { Some(e) } else { None })
@@ -353,14 +408,19 @@ impl Evaluator<'_> {
                 let u = p.kp.u;
                 let err = 1e3 * p.tau_relative_error.max(f64::EPSILON) * (1.0 + u.norm());
                 let v = if u.im.abs() <= err { Num::Real(u.re) } else { Num::Complex(u) };
-                Ok(Valued {
-                    value: Value::Num(v),
-                    error_bound: err,
-                    reason: Some(format!("u of the {} wave", w.kind_name())),
-                })
+                let reason = match w.water() {
+                    Some(water) => format!(
+                        "surface elevation eta in metres at (x, y, t) in m, m, s ({}); {}",
+                        water.describe(),
+                        crate::waves::water::CAUTION
+                    ),
+                    None => format!("u of the {} wave", w.kind_name()),
+                };
+                Ok(Valued { value: Value::Num(v), error_bound: err, reason: Some(reason) })
             }
             "kp_residual" => {
-                if let WaveKind::Rational(r) = &w.kind {
+                let base = w.water().map_or(&*w, |water| &*water.inner);
+                if let WaveKind::Rational(r) = &base.kind {
                     if r.exact_solution {
                         return Ok(Valued {
                             value: Value::Num(Num::int(0)),
@@ -399,8 +459,9 @@ impl Evaluator<'_> {
                 })
             }
             _ => {
-                // regular
-                if let WaveKind::Soliton(s) = &w.kind {
+                // regular (a water wave is regular exactly when the wave it reads is)
+                let base = w.water().map_or(&*w, |water| &*water.inner);
+                if let WaveKind::Soliton(s) = &base.kind {
                     let reason = match s.negative_minor() {
                         Some(m) => format!(
                             "the maximal minor Delta_{{{}}} = {} is negative (columns of kappa sorted increasingly), so tau changes sign somewhere",

@@ -185,6 +185,15 @@ pub const BUILTINS: &[Builtin] = &[
         summary: "Rational KP solution whose tau function is the Schur polynomial of the partition L.",
     },
     Builtin {
+        name: "shallow_water",
+        positional: &[p("wave", K::Wave)],
+        keywords: &[p("depth", K::Number), p("epsilon", K::Number), opt("gravity", K::Number)],
+        region: RegionUse::None,
+        yields: Yields::Wave,
+        signature: "shallow_water(W, depth = h, epsilon = e, gravity = g)",
+        summary: "W read as surface elevation eta = e h u in metres over x, y in metres and t in seconds, for still depth h (m) and gravity g (default 9.80665 m/s^2), by the dimensional KP-II of Ablowitz & Segur (1979). A weakly nonlinear long-wave model: not for coastal engineering or safety decisions.",
+    },
+    Builtin {
         name: "kp_residual",
         positional: &[p("wave", K::Wave)],
         keywords: &[],

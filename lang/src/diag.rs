@@ -132,6 +132,7 @@ codes! {
     ValueInfo = "K603": "facts about a computed value (information)",
     NotRiemannMatrix = "K604": "a matrix used as a Riemann matrix is not symmetric or its imaginary part is not positive definite",
     BudgetExceeded = "K605": "a computation needs more work than its limit allows",
+    ModelLimits = "K606": "a result in physical units, with the limits of the model it comes from",
 
     ClaimFailed = "K701": "a claim is false",
     ClaimUndecided = "K702": "a claim cannot be decided within its tolerance",

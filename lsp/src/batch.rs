@@ -4,7 +4,7 @@
 //! SARIF 2.1.0 or JUnit XML.
 
 use kelp_evaluator::{evaluate, json::file_report, Mode};
-use kelp_lang::{check, render::render, Diagnostic, Encoding, LineIndex, Severity};
+use kelp_lang::{check, render::render, Code, Diagnostic, Encoding, LineIndex, Severity};
 use serde_json::{json, Value as J};
 use std::path::{Path, PathBuf};
 
@@ -99,8 +99,9 @@ pub fn outcome(path: &Path, mode: &Mode, verbose: bool, color: bool) -> Result<O
         utf8.into_iter().chain(checked.diagnostics.iter().cloned()).chain(eval.diagnostics.iter().cloned()).collect();
     kelp_lang::diag::sort(&mut diags);
     let any_error = diags.iter().any(Diagnostic::is_error);
-    let visible: Vec<Diagnostic> =
-        diags.iter().filter(|d| verbose || d.severity <= Severity::Warning).cloned().collect();
+    // Cautions about physical units are always shown, like warnings.
+    let shown_always = |d: &Diagnostic| d.severity <= Severity::Warning || d.code == Code::ModelLimits;
+    let visible: Vec<Diagnostic> = diags.iter().filter(|d| verbose || shown_always(d)).cloned().collect();
     let rendered = render(&shown, &src, &visible, color);
     let mut values = vec![];
     if verbose {
@@ -122,16 +123,22 @@ pub fn outcome(path: &Path, mode: &Mode, verbose: bool, color: bool) -> Result<O
     let written: Vec<String> = eval.outputs.iter().map(|o| format!("  wrote {o}")).collect();
     let json = file_report(&shown, &src, &diags, &eval);
 
-    // SARIF: one result per warning or error (information diagnostics are hover material).
+    // SARIF: one result per warning or error, and the physical-units cautions as notes
+    // (other information diagnostics are hover material).
     let idx = LineIndex::new(&src);
     let sarif = diags
         .iter()
-        .filter(|d| d.severity <= Severity::Warning)
+        .filter(|d| shown_always(d))
         .map(|d| {
             let (a, b) = (idx.line_col(d.span.start, Encoding::Utf16), idx.line_col(d.span.end, Encoding::Utf16));
+            let level = match d.severity {
+                Severity::Error => "error",
+                Severity::Warning => "warning",
+                _ => "note",
+            };
             json!({
                 "ruleId": d.code.as_str(),
-                "level": if d.is_error() { "error" } else { "warning" },
+                "level": level,
                 "message": {"text": d.message},
                 "locations": [{"physicalLocation": {
                     "artifactLocation": {"uri": shown.replace('\\', "/")},

@@ -113,3 +113,42 @@ fn outputs_cannot_escape_through_a_link() {
     let _ = std::fs::remove_dir_all(&d);
     let _ = std::fs::remove_dir_all(&outside);
 }
+
+/// A water wave's outputs say what they hold: units in the CSV header and the JSON, the
+/// model's caution in the JSON, the SVG and the terminal. Values: the KdV solitary wave
+/// eta = a sech^2(sqrt(3a / 4h^3) x) at t = 0 (Korteweg & de Vries 1895; Whitham 1974,
+/// ch. 13, from memory) with a = 2 eps h for kappa = (-1, 1).
+#[test]
+fn water_outputs_carry_units_and_the_caution() {
+    let d = dir("water");
+    let file = d.join("flume.kelp");
+    std::fs::write(
+        &file,
+        "# invented flume\nwave crest = soliton(kappa = [-1, 1], a = [[1, 1]])\n\
+         wave flume = shallow_water(crest, depth = 0.5, epsilon = 0.05)\n\
+         sample flume over x in -2..2 step 1, t = 0 to \"out/flume.csv\"\n\
+         sample flume over x in -1..1 step 1, t = 0 to \"out/flume.json\"\n\
+         plot flume over x in -5..5, y in -1..1, t = 0 to \"out/flume.svg\"\n",
+    )
+    .unwrap();
+    let (code, stdout, stderr) = kelp(&["run", file.to_str().unwrap()]);
+    let text = stdout + &stderr;
+    assert_eq!(code, 0, "{text}");
+    assert!(text.contains("K606") && text.contains("not for coastal engineering or safety decisions"), "{text}");
+    let csv = std::fs::read_to_string(d.join("out/flume.csv")).unwrap();
+    let mut lines = csv.lines();
+    assert_eq!(lines.next(), Some("x_m,y_m,t_s,eta_m"));
+    let (h, a) = (0.5f64, 2.0 * 0.05 * 0.5);
+    for line in lines {
+        let v: Vec<f64> = line.split(',').map(|s| s.parse().unwrap()).collect();
+        let want = a / ((3.0 * a / (4.0 * h * h * h)).sqrt() * v[0]).cosh().powi(2);
+        assert!((v[3] - want).abs() < 1e-13, "{line}: {want}");
+    }
+    let j: serde_json::Value = serde_json::from_slice(&std::fs::read(d.join("out/flume.json")).unwrap()).unwrap();
+    assert_eq!(j["units"]["eta"], "m");
+    assert_eq!(j["layout"], "eta[t][y][x]");
+    assert!(j["caution"].as_str().unwrap().contains("licensed practice"));
+    assert_eq!(j["wave"]["wave"]["kind"], "soliton");
+    let svg = std::fs::read_to_string(d.join("out/flume.svg")).unwrap();
+    assert!(svg.contains("eta (m)") && svg.contains("x (m)") && svg.contains("not for coastal engineering"));
+}

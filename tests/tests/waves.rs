@@ -10,7 +10,7 @@ use kelp_evaluator::waves::{Wave, WaveKind};
 use kelp_evaluator::{evaluate, Mode, Value};
 use num_complex::Complex64 as C64;
 use serde_json::Value as J;
-use std::rc::Rc;
+use std::sync::Arc;
 
 fn doc() -> J {
     serde_json::from_str(include_str!("../fixtures/wave_refs.json")).unwrap()
@@ -22,7 +22,7 @@ fn eval(src: &str) -> kelp_evaluator::Evaluation {
     evaluate(&c, src, &Mode::Check)
 }
 
-fn wave(e: &kelp_evaluator::Evaluation, name: &str) -> Rc<Wave> {
+fn wave(e: &kelp_evaluator::Evaluation, name: &str) -> Arc<Wave> {
     match &e.values.iter().find(|v| v.name == name).unwrap_or_else(|| panic!("{name}: {:?}", e.diagnostics)).value.value
     {
         Value::Wave(w) => w.clone(),
@@ -183,4 +183,51 @@ fn genus_one_theta_wave_matches_mpmath() {
         assert!((r.kp.u - want).norm() < 1e-10 * (1.0 + want.norm()), "{}: {} vs {want}", src, r.kp.u);
         assert!(r.kp.residual.norm() < 1e-9 * r.kp.scale, "residual {}", r.kp.residual);
     }
+}
+
+/// `shallow_water` of the y-independent one-soliton is the classical KdV solitary wave
+/// eta = a sech^2(sqrt(3a / 4h^3) (x - c t)), c = sqrt(g h) (1 + a / 2h) (Korteweg & de
+/// Vries 1895; Whitham, *Linear and Nonlinear Waves* (1974) ch. 13, cited from memory).
+/// An oblique soliton eta = a sech^2(K (x + p y - c t)) of the dimensional KP-II of
+/// Ablowitz & Segur (J. Fluid Mech. 92, 1979) needs c = sqrt(g h) (1 + a / 2h + p^2 / 2)
+/// [derived: put eta = f(x + p y - c t) into that equation]; its slope is
+/// p = (k1 + k2) sqrt(3 eps / 2) for kappa = [k1, k2]. Wrong x, y or t scales break these.
+#[test]
+fn shallow_water_matches_the_kdv_solitary_wave_and_oblique_kp_solitons() {
+    let (h, eps, g) = (0.8f64, 0.12f64, 9.81f64);
+    for (k1, k2) in [(-0.6f64, 0.6f64), (-0.9, 0.3), (-0.2, 0.7)] {
+        let src = format!(
+            "wave crest = soliton(kappa = [{k1}, {k2}], a = [[1, 1]])\n\
+             wave flume = shallow_water(crest, depth = {h}, epsilon = {eps}, gravity = {g})\n"
+        );
+        let e = eval(&src);
+        assert!(e.diagnostics.iter().any(|d| d.code == kelp_lang::Code::ModelLimits), "the caution is given");
+        let w = wave(&e, "flume");
+        let a = eps * h * (k1 - k2) * (k1 - k2) / 2.0;
+        let kk = (3.0 * a / (4.0 * h * h * h)).sqrt();
+        let p = (k1 + k2) * (1.5 * eps).sqrt();
+        let c = (g * h).sqrt() * (1.0 + a / (2.0 * h) + p * p / 2.0);
+        for &(x, y, t) in &[(0.0, 0.0, 0.0), (0.7, 0.0, 0.0), (1.3, 0.4, 0.25), (-2.0, 1.5, 0.9), (4.0, -3.0, 2.0)] {
+            let want = a / (kk * (x + p * y - c * t)).cosh().powi(2);
+            let got = w.u(x, y, t).unwrap();
+            assert!(
+                (got.re - want).abs() < 1e-12 * a && got.im.abs() < 1e-15,
+                "{k1},{k2} at ({x},{y},{t}): {got} vs {want}"
+            );
+            let full = w.at(x, y, t).unwrap();
+            assert!((full.kp.u.re - want).abs() < 1e-12 * a, "series route: {} vs {want}", full.kp.u);
+        }
+    }
+}
+
+/// Amplitudes of order the depth are outside the model: a warning, not only a note.
+#[test]
+fn large_epsilon_is_warned_about() {
+    let e =
+        eval("wave c = soliton(kappa = [-1, 1], a = [[1, 1]])\nwave f = shallow_water(c, depth = 1, epsilon = 0.6)\n");
+    let d = e.diagnostics.iter().find(|d| d.code == kelp_lang::Code::ModelLimits).expect("a caution");
+    assert_eq!(d.severity, kelp_lang::Severity::Warning, "{}", d.message);
+    let bad =
+        eval("wave c = soliton(kappa = [-1, 1], a = [[1, 1]])\nwave f = shallow_water(c, depth = -1, epsilon = 0.1)\n");
+    assert!(bad.diagnostics.iter().any(|d| d.is_error() && d.message.contains("depth must be a positive number")));
 }

@@ -17,9 +17,27 @@ pub struct Grid {
     pub y: Vec<f64>,
     pub t: Vec<f64>,
     pub u: Vec<C64>,
+    /// Whether the values are a water wave's elevation in metres over metres and seconds.
+    pub physical: bool,
 }
 
 impl Grid {
+    /// Names of the axes and the value: kelp's dimensionless (x, y, t, u), or the
+    /// physical (x, y in m, t in s, eta in m) of a water wave.
+    pub fn names(&self) -> Names {
+        if self.physical {
+            Names {
+                x: "x (m)",
+                y: "y (m)",
+                t_unit: " s",
+                value: "eta (m)",
+                csv: ["x_m", "y_m", "t_s", "eta_m", "eta_im_m"],
+            }
+        } else {
+            Names { x: "x", y: "y", t_unit: "", value: "u", csv: ["x", "y", "t", "u", "u_im"] }
+        }
+    }
+
     pub fn at(&self, it: usize, iy: usize, ix: usize) -> C64 {
         self.u[(it * self.y.len() + iy) * self.x.len() + ix]
     }
@@ -43,6 +61,16 @@ impl Grid {
                 v
             })
             .collect();
-        Ok(Grid { u: u?, x, y, t })
+        Ok(Grid { u: u?, x, y, t, physical: wave.water().is_some() })
     }
+}
+
+pub struct Names {
+    pub x: &'static str,
+    pub y: &'static str,
+    /// Unit after a time value (" s", or nothing).
+    pub t_unit: &'static str,
+    pub value: &'static str,
+    /// CSV header: x, y, t, value, imaginary part of the value.
+    pub csv: [&'static str; 5],
 }

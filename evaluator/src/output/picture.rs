@@ -43,8 +43,9 @@ fn frame<'a>(g: &'a Grid, it: usize, what: &str) -> Frame<'a> {
     let lo = vals.iter().copied().fold(f64::INFINITY, f64::min);
     let hi = vals.iter().copied().fold(f64::NEG_INFINITY, f64::max);
     let (lo, hi) = if hi > lo { (lo, hi) } else { (lo - 0.5, hi + 0.5) };
-    let part = if g.complex() { "Re u" } else { "u" };
-    Frame { g, it, lo, hi, title: format!("{part} of {what}, t = {}", label(g.t[it])) }
+    let n = g.names();
+    let part = if g.complex() { format!("Re {}", n.value) } else { n.value.to_string() };
+    Frame { g, it, lo, hi, title: format!("{part} of {what}, t = {}{}", label(g.t[it]), n.t_unit) }
 }
 
 fn ticks(a: f64, b: f64) -> Vec<f64> {
@@ -63,6 +64,13 @@ pub fn svg(g: &Grid, it: usize, what: &str) -> Vec<u8> {
         f.title,
         crate::waves::KP_FORM
     );
+    if g.physical {
+        s.push_str(&format!(
+            "<text x=\"8\" y=\"{}\" font-size=\"9\">Model only: {}.</text>\n",
+            H - 6,
+            crate::waves::water::CAUTION
+        ));
+    }
     // The cells as one embedded nx x ny PNG (rows top = largest y), drawn without smoothing:
     // a rect per cell made 3 MB files for a 200 x 200 grid.
     let mut cells = vec![0u8; 3 * nx * ny];
@@ -110,8 +118,9 @@ pub fn svg(g: &Grid, it: usize, what: &str) -> Vec<u8> {
             label(*v)
         ));
     }
-    s.push_str(&format!("<text x=\"{}\" y=\"{}\" text-anchor=\"middle\">x</text>\n", l + w / 2, t + h + 36));
-    s.push_str(&format!("<text x=\"{}\" y=\"{}\" text-anchor=\"middle\">y</text>\n", l - 50, t + h / 2));
+    let n = g.names();
+    s.push_str(&format!("<text x=\"{}\" y=\"{}\" text-anchor=\"middle\">{}</text>\n", l + w / 2, t + h + 36, n.x));
+    s.push_str(&format!("<text x=\"{}\" y=\"{}\" text-anchor=\"middle\">{}</text>\n", l - 50, t + h / 2, n.y));
     // Colour bar.
     let (bl, bw) = BAR;
     s.push_str("<defs><linearGradient id=\"bar\" x1=\"0\" y1=\"1\" x2=\"0\" y2=\"0\">");
@@ -154,6 +163,11 @@ fn glyph(c: char) -> [u8; 7] {
         't' => [8, 8, 28, 8, 8, 9, 6],
         'u' => [0, 0, 17, 17, 17, 19, 13],
         'R' => [30, 17, 17, 30, 20, 18, 17],
+        'a' => [0, 0, 14, 1, 15, 17, 15],
+        'm' => [0, 0, 26, 21, 21, 17, 17],
+        's' => [0, 0, 15, 16, 14, 1, 30],
+        '(' => [2, 4, 8, 8, 8, 4, 2],
+        ')' => [8, 4, 2, 2, 2, 4, 8],
         _ => [0; 7],
     }
 }
@@ -226,9 +240,12 @@ pub fn png(g: &Grid, it: usize, what: &str) -> Result<Vec<u8>, String> {
         c.rect(l - 6, py, 6, 1, [0; 3]);
         c.text(l - 10, py.saturating_sub(7), &label(*v), true);
     }
-    c.text(l + w / 2, t + h + 32, "x", false);
-    c.text(l - 70, t + h / 2, "y", false);
-    let title = format!("{}  t={}", if g.complex() { "Re u" } else { "u" }, label(g.t[it]));
+    let n = g.names();
+    c.text(l + w / 2, t + h + 32, n.x, false);
+    // Above the tick labels (which take the left margin).
+    c.text(4, t.saturating_sub(20), n.y, false);
+    let value = if g.complex() { format!("Re {}", n.value) } else { n.value.to_string() };
+    let title = format!("{value}  t={}{}", label(g.t[it]), n.t_unit);
     c.text(l, 14, &title, false);
     let (bl, bw) = BAR;
     for k in 0..h {

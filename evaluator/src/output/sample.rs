@@ -1,5 +1,5 @@
-//! Sampled grids: `.csv` (header x,y,t,u; a u_im column when u is complex), `.json` (axes,
-//! u as [t][y][x], the wave and the KP form) and `.npy` (NumPy format 1.0: little-endian
+//! Sampled grids: `.csv` (header x,y,t,u; a u_im column when u is complex; for a water wave
+//! x_m,y_m,t_s,eta_m), `.json` (axes, u (or eta) as [t][y][x], the wave and the KP form) and `.npy` (NumPy format 1.0: little-endian
 //! float64, or complex128 when u is complex, shape (nt, ny, nx); the format is NumPy's
 //! documented NEP 1).
 
@@ -8,7 +8,9 @@ use serde_json::json;
 
 pub fn csv(g: &Grid) -> Vec<u8> {
     let complex = g.complex();
-    let mut s = String::from(if complex { "x,y,t,u,u_im\n" } else { "x,y,t,u\n" });
+    let h = g.names().csv;
+    let mut s = if complex { h.join(",") } else { h[..4].join(",") };
+    s.push('\n');
     for (it, t) in g.t.iter().enumerate() {
         for (iy, y) in g.y.iter().enumerate() {
             for (ix, x) in g.x.iter().enumerate() {
@@ -33,15 +35,20 @@ pub fn json(g: &Grid, wave: serde_json::Value) -> Vec<u8> {
                 .collect::<Vec<_>>())
             .collect::<Vec<_>>())
     };
+    let key = if g.physical { "eta" } else { "u" };
     let mut o = json!({
         "kp_form": crate::waves::KP_FORM,
         "wave": wave,
         "x": g.x, "y": g.y, "t": g.t,
-        "layout": "u[t][y][x]",
-        "u": part(|c| c.re),
+        "layout": format!("{key}[t][y][x]"),
     });
+    if g.physical {
+        o["units"] = json!({"x": "m", "y": "m", "t": "s", "eta": "m"});
+        o["caution"] = json!(crate::waves::water::CAUTION);
+    }
+    o[key] = part(|c| c.re);
     if complex {
-        o["u_im"] = part(|c| c.im);
+        o[format!("{key}_im")] = part(|c| c.im);
     }
     serde_json::to_vec_pretty(&o).expect("serialisable")
 }

@@ -8,6 +8,7 @@ pub mod rational;
 pub mod series;
 pub mod soliton;
 pub mod theta_wave;
+pub mod water;
 
 #[cfg(test)]
 mod tests;
@@ -23,6 +24,8 @@ pub enum WaveKind {
     Theta(theta_wave::ThetaWave),
     Soliton(soliton::Soliton),
     Rational(rational::RationalWave),
+    /// Another wave read as shallow water in physical units.
+    Water(water::Water),
 }
 
 #[derive(Debug)]
@@ -48,6 +51,14 @@ impl Wave {
             }
             WaveKind::Soliton(w) => (w.series(x, y, t), 0.0, C64::new(0.0, 0.0)),
             WaveKind::Rational(w) => (w.series(x, y, t), 0.0, C64::new(0.0, 0.0)),
+            WaveKind::Water(w) => {
+                // The residual is that of kelp's form at the mapped point: the map is
+                // linear, so the scaled residual is the same number.
+                let (kx, ky, kt) = w.kp_point(x, y, t);
+                let mut p = w.inner.at(kx, ky, kt)?;
+                p.kp.u *= w.eta_scale();
+                return Ok(p);
+            }
         };
         let f = s
             .log_normalised()
@@ -56,7 +67,8 @@ impl Wave {
     }
 
     /// u alone at a point: u = 2 (tau_xx / tau - (tau_x / tau)^2) + c from the x-jet of tau,
-    /// cheaper than the full series the residual needs (for samples and pictures).
+    /// cheaper than the full series the residual needs (for samples and pictures). For a
+    /// water wave: the elevation eta in metres.
     pub fn u(&self, x: f64, y: f64, t: f64) -> Result<C64, String> {
         let (j, c) = match &self.kind {
             WaveKind::Theta(w) => (w.x_jet(x, y, t).map_err(|e| e.to_string())?, w.c),
@@ -65,6 +77,10 @@ impl Wave {
                 ([j[0], j[1], j[2]].map(|v| C64::new(v, 0.0)), C64::new(0.0, 0.0))
             }
             WaveKind::Rational(_) => return self.at(x, y, t).map(|p| p.kp.u),
+            WaveKind::Water(w) => {
+                let (kx, ky, kt) = w.kp_point(x, y, t);
+                return w.inner.u(kx, ky, kt).map(|u| u * w.eta_scale());
+            }
         };
         if j[0].norm() == 0.0 || !j[0].re.is_finite() {
             return Err(format!("tau vanishes at (x, y, t) = ({x}, {y}, {t}): u is singular there"));
@@ -78,6 +94,15 @@ impl Wave {
             WaveKind::Theta(_) => "theta",
             WaveKind::Soliton(_) => "soliton",
             WaveKind::Rational(_) => "rational",
+            WaveKind::Water(_) => "shallow-water",
+        }
+    }
+
+    /// The physical reading, if this is a water wave.
+    pub fn water(&self) -> Option<&water::Water> {
+        match &self.kind {
+            WaveKind::Water(w) => Some(w),
+            _ => None,
         }
     }
 }
