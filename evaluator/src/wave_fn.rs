@@ -6,6 +6,7 @@ use crate::num::Num;
 use crate::periods::shape::recognise;
 use crate::theta::ThetaContext;
 use crate::value::{Value, Valued};
+use crate::waves::krichever::Place;
 use crate::waves::rational::RationalWave;
 use crate::waves::soliton::Soliton;
 use crate::waves::theta_wave::{dubrovin_constants, ThetaWave};
@@ -318,23 +319,24 @@ impl Evaluator<'_> {
         };
         let pe = Self::keyword(args, "at")
             .ok_or_else(|| fail(Code::MissingArgument, span, "`krichever` needs a point `at = (x, y)`"))?;
-        let (xp, yp) = match self.expr(pe)?.value {
+        // None: the point at infinity (z = 0), given as its projective coordinates.
+        let at: Option<(C64, C64)>;
+        let mut at_infinity: Option<(C64, C64)> = None;
+        match self.expr(pe)?.value {
             Value::Point { coords, projective: false } if coords.len() == 2 => {
-                (coords[0].to_complex(), coords[1].to_complex())
+                at = Some((coords[0].to_complex(), coords[1].to_complex()));
             }
             Value::Point { coords, projective: true } if coords.len() == 3 => {
                 let z = coords[2].to_complex();
                 if z.norm() == 0.0 {
-                    return Err(fail(
-                        Code::NotSupported,
-                        pe.span,
-                        "points at infinity are not supported yet for `krichever`; pick a finite point",
-                    ));
+                    at = None;
+                    at_infinity = Some((coords[0].to_complex(), coords[1].to_complex()));
+                } else {
+                    at = Some((coords[0].to_complex() / z, coords[1].to_complex() / z));
                 }
-                (coords[0].to_complex() / z, coords[1].to_complex() / z)
             }
             _ => return Err(fail(Code::WrongKind, pe.span, "`at` must be a point (x, y) or (x : y : z)")),
-        };
+        }
         let Some(shape) = recognise(&c.equation.poly, c.equation.projective) else {
             return Err(fail(
                 Code::NotSupported,
@@ -345,10 +347,41 @@ impl Evaluator<'_> {
                 ),
             ));
         };
+        let place = match (at, at_infinity) {
+            (Some((xp, yp)), _) => {
+                let (sx, sy) = if shape.swapped { (yp, xp) } else { (xp, yp) };
+                Place::Finite(sx, sy)
+            }
+            (None, Some((px, py))) => {
+                // In the shape's coordinates (X, Y), Y^m = f(X) with deg f = n: at X = infinity,
+                // Y ~ X^(n/m), so the plane point is (0 : 1 : 0) when n > m and (1 : 0 : 0) when n < m.
+                let (qx, qy) = if shape.swapped { (py, px) } else { (px, py) };
+                let n = shape.f.0.len().saturating_sub(1) as u32;
+                let expected_y_only = n > shape.m;
+                let on_curve = if expected_y_only { qx.norm() == 0.0 } else { qy.norm() == 0.0 };
+                if !on_curve {
+                    let want = match (expected_y_only, shape.swapped) {
+                        (true, false) | (false, true) => "(0 : 1 : 0)",
+                        _ => "(1 : 0 : 0)",
+                    };
+                    return Err(fail(
+                        Code::EvalFailed,
+                        pe.span,
+                        format!("this point at infinity is not on `{}`: its point at infinity is {want}", c.name),
+                    ));
+                }
+                Place::Infinity
+            }
+            (None, None) => unreachable!("a point is finite or at infinity"),
+        };
         let r = self.riemann_matrix(&c, true, ce.span)?;
-        let (sx, sy) = if shape.swapped { (yp, xp) } else { (xp, yp) };
-        let k = crate::waves::krichever::krichever_superelliptic(&shape, &r, sx, sy)
+        let k = crate::waves::krichever::krichever_at(&shape, &r, place)
             .map_err(|m| fail(Code::EvalFailed, pe.span, format!("`krichever({})`: {m}", c.name)))?;
+        let (xp, yp) = match place {
+            Place::Finite(a, b) if shape.swapped => (b, a),
+            Place::Finite(a, b) => (a, b),
+            Place::Infinity => (C64::new(f64::INFINITY, 0.0), C64::new(f64::INFINITY, 0.0)),
+        };
         let (cc, _d, dres) =
             dubrovin_constants(&r.tau, &k.u, &k.v, &k.w).map_err(|e| crate::theta_fn::theta_error(e, ce.span))?;
         let g = k.u.len();
@@ -358,10 +391,13 @@ impl Evaluator<'_> {
         };
         let ctx = ThetaContext::new(&r.tau, 1e-8).map_err(|e| crate::theta_fn::theta_error(e, ce.span))?;
         let origin = format!(
-            "Krichever's wave of `{}` at ({}, {}), local parameter {}; genus {g}, tau error {:.1e}{}; c = {} from Dubrovin's conditions (relative residual {:.1e})",
+            "Krichever's wave of `{}` at {}, local parameter {}; genus {g}, tau error {:.1e}{}; c = {} from Dubrovin's conditions (relative residual {:.1e})",
             c.name,
-            crate::num::fmt_f64(xp.re),
-            crate::num::fmt_f64(yp.re),
+            if xp.re.is_finite() {
+                format!("({}, {})", crate::num::fmt_f64(xp.re), crate::num::fmt_f64(yp.re))
+            } else {
+                "the point at infinity".to_string()
+            },
             k.local_parameter,
             r.error,
             if r.reduced.is_some() { ", Siegel-reduced" } else { "" },

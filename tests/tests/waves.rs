@@ -231,3 +231,49 @@ fn large_epsilon_is_warned_about() {
         eval("wave c = soliton(kappa = [-1, 1], a = [[1, 1]])\nwave f = shallow_water(c, depth = -1, epsilon = 0.1)\n");
     assert!(bad.diagnostics.iter().any(|d| d.is_error() && d.message.contains("depth must be a positive number")));
 }
+
+// Krichever's construction at points of total ramification: a finite branch point (local
+// parameter y) and the point at infinity (local parameter x^(-1/m)). There the KP solution
+// reduces: hyperelliptic (m = 2) gives V = 0, a KdV solution independent of y (Its &
+// Matveev 1975); trigonal (m = 3) gives W = 0, a Boussinesq solution independent of t
+// (Krichever 1977; Dubrovin 1981; both cited from memory). The residual is at rounding
+// level, and perturbing U, V or W still breaks it.
+#[test]
+fn krichever_at_branch_points_and_infinity_reduces_to_kdv_and_boussinesq() {
+    let src = "curve e: y^2 = x^3 + x^2 - 2*x + 5\ncurve h: y^2 = x*(x - 1)*(x + 2)*(x - 3)*(x + 5)\n\
+               curve p: y^3 = x^4 - 2*x + 3\ncurve q: y^3 = x*(x - 1)*(x + 2)*(x - 4)\n\
+               wave e_inf = krichever(e, at = (0 : 1 : 0))\nwave h_inf = krichever(h, at = (0 : 1 : 0))\n\
+               wave h_one = krichever(h, at = (1, 0))\nwave h_zero = krichever(h, at = (0, 0))\n\
+               wave p_inf = krichever(p, at = (0 : 1 : 0))\nwave q_one = krichever(q, at = (1, 0))\n";
+    let e = eval(src);
+    for (name, reduced) in [("e_inf", 1), ("h_inf", 1), ("h_one", 1), ("h_zero", 1), ("p_inf", 2), ("q_one", 2)] {
+        let w = wave(&e, name);
+        let WaveKind::Theta(t) = &w.kind else { panic!() };
+        let size = t.u.iter().map(|z| z.norm()).fold(0.0, f64::max);
+        let gone = if reduced == 1 { &t.v } else { &t.w };
+        assert!(gone.iter().all(|z| z.norm() < 1e-12 * size), "{name}: {gone:?}");
+        let kept = if reduced == 1 { &t.w } else { &t.v };
+        assert!(kept.iter().any(|z| z.norm() > 1e-3 * size), "{name}: the other direction is not trivial: {kept:?}");
+        let r = residual(&w);
+        assert!(r < 1e-8, "{name}: residual {r:.2e}");
+        for which in 0..3 {
+            let bad = if which == reduced {
+                // The vanishing direction: switch it on at U's size.
+                let mut moved = perturbed(t, 3);
+                let WaveKind::Theta(m) = &mut moved.kind else { panic!() };
+                let target = if reduced == 1 { &mut m.v } else { &mut m.w };
+                target[0] += size;
+                residual(&moved)
+            } else {
+                residual(&perturbed(t, which))
+            };
+            // A one-phase (genus 1) wave at infinity feels a 2% change weakly (7.6e-4 for
+            // W here), so the bar is 1e-5: three orders above the unperturbed residual.
+            assert!(bad > 1e-5, "{name}: perturbing {} only reaches {bad:.2e}", ["U", "V", "W"][which]);
+        }
+    }
+    // Two places over infinity (y^2 = quartic) cannot be told apart by a plane point.
+    let c = kelp_lang::check("curve k: y^2 = x^4 + 1\nwave w = krichever(k, at = (0 : 1 : 0))\n");
+    let ev = evaluate(&c, "", &Mode::Check);
+    assert!(ev.diagnostics.iter().any(|d| d.message.contains("2 places over x = infinity")), "{:?}", ev.diagnostics);
+}

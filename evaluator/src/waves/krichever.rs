@@ -1,8 +1,12 @@
-//! Krichever's construction for curves y^m = f(x) at a finite point P = (x_P, y_P) with
-//! y_P != 0, local parameter lam = x - x_P (conventions file): expand the normalized
-//! holomorphic differentials A^-1 omega = (U + V lam + W lam^2 + O(lam^3)) d lam; then
-//! u = 2 d^2/dx^2 log theta(U x + V y + W t + D | tau) + c, with c from Dubrovin's
-//! conditions (Krichever 1977; Dubrovin 1981).
+//! Krichever's construction for curves y^m = f(x) (conventions file): expand the
+//! normalized holomorphic differentials A^-1 omega = (U + V lam + W lam^2 + O(lam^3)) d lam
+//! at a point P in a local parameter lam; then u = 2 d^2/dx^2 log theta(U x + V y + W t + D)
+//! + c, with c from Dubrovin's conditions (Krichever 1977; Dubrovin 1981).
+//!
+//! Local parameters: lam = x - x_P at a finite point with y_P != 0; lam = y at a finite
+//! branch point (y_P = 0); lam = x^(-1/m) at the one place over x = infinity when
+//! gcd(m, deg f) = 1. At a branch point of a hyperelliptic curve every omega / d lam is
+//! even in lam, so V = 0 and u solves KdV (Its & Matveev 1975; cited from memory).
 
 use crate::periods::shape::Superelliptic;
 use crate::periods::RiemannMatrix;
@@ -42,13 +46,110 @@ fn expand(f: &[C64], x0: C64) -> (C64, C64, C64) {
     (taylor[0], taylor[1] / taylor[0], taylor[2] / taylor[0])
 }
 
+/// Where the wave is taken from.
+#[derive(Clone, Copy, Debug)]
+pub enum Place {
+    /// A finite point (x_P, y_P) in the shape's coordinates.
+    Finite(C64, C64),
+    /// The one place over x = infinity (needs gcd(m, deg f) = 1).
+    Infinity,
+}
+
+fn coefficients(s: &Superelliptic) -> Vec<C64> {
+    s.f.0.iter().map(|c| C64::new(kelp_lang::number::to_f64(c), 0.0)).collect()
+}
+
+/// Normalizes the expansion rows (one per differential: coefficients of lam^0, lam^1,
+/// lam^2) with the a-periods.
+fn normalize(r: &RiemannMatrix, alpha: DMatrix<C64>, local_parameter: String) -> Result<KricheverData, String> {
+    let g = alpha.nrows();
+    let ainv = r.a_basis.clone().try_inverse().ok_or("the a-period matrix is singular")?;
+    let n = ainv * alpha;
+    let col = |k: usize| (0..g).map(|j| n[(j, k)]).collect::<Vec<_>>();
+    Ok(KricheverData { u: col(0), v: col(1), w: col(2), local_parameter })
+}
+
+/// At a finite branch point (x_P, 0), lam = y: f(x_P + s) = f1 s + f2 s^2 + ... = lam^m
+/// gives s = lam^m / f1 - f2 lam^(2m) / f1^3 + ..., so
+/// x^p dx / y^j = (m / f1) x^p lam^(m-1-j) (1 - 2 f2 lam^m / f1^2 + ...) d lam,
+/// x^p = x_P^p + p x_P^(p-1) lam^m / f1 + ...; only m = 2 has corrections below lam^3.
+fn at_branch_point(s: &Superelliptic, r: &RiemannMatrix, xp: C64, f1: C64, f2: C64) -> Result<KricheverData, String> {
+    let m = s.m as i32;
+    let diffs = &r.periods.differentials;
+    let mut alpha = DMatrix::<C64>::zeros(diffs.len(), 3);
+    for (l, d) in diffs.iter().enumerate() {
+        let p = d.power as i32;
+        let e = m - 1 - d.j as i32;
+        let lead = (m as f64 / f1) * xp.powi(p);
+        if e <= 2 {
+            alpha[(l, e as usize)] += lead;
+        }
+        if m == 2 {
+            // e = 0 here (j = 1): the lam^2 corrections from dx and from x^p.
+            let dx_term = lead * (-2.0 * f2 / (f1 * f1));
+            let xp_term = if p >= 1 { (m as f64 / f1) * (p as f64) * xp.powi(p - 1) / f1 } else { C64::new(0.0, 0.0) };
+            alpha[(l, 2)] += dx_term + xp_term;
+        }
+    }
+    let yv = if s.swapped { "x" } else { "y" };
+    normalize(r, alpha, format!("{yv} (at a branch point)"))
+}
+
+/// At the one place over x = infinity (gcd(m, n) = 1), lam = x^(-1/m): with
+/// f = a x^n (1 + b1 / x + ...), y = a^(1/m) lam^(-n) (1 + b1 lam^m + ...)^(1/m), and
+/// x^p dx / y^j = -m a^(-j/m) lam^(nj - m(p+1) - 1) (1 - (j/m) b1 lam^m + ...) d lam.
+fn at_infinity(s: &Superelliptic, r: &RiemannMatrix) -> Result<KricheverData, String> {
+    let f = coefficients(s);
+    let n = f.len() as i32 - 1;
+    let m = s.m as i32;
+    if gcd(m, n) != 1 {
+        return Err(format!(
+            "the curve has {} places over {} = infinity (gcd({m}, {n}) > 1), which a plane point cannot tell apart; pick a finite point",
+            gcd(m, n),
+            if s.swapped { "y" } else { "x" }
+        ));
+    }
+    let a = f[n as usize];
+    let b1 = f[n as usize - 1] / a;
+    let diffs = &r.periods.differentials;
+    let mut alpha = DMatrix::<C64>::zeros(diffs.len(), 3);
+    for (l, d) in diffs.iter().enumerate() {
+        let (p, j) = (d.power as i32, d.j as i32);
+        let e = n * j - m * (p + 1) - 1;
+        let lead = -(m as f64) * a.powf(-(j as f64) / m as f64);
+        if (0..=2).contains(&e) {
+            alpha[(l, e as usize)] += lead;
+        }
+        if (0..=2).contains(&(e + m)) {
+            alpha[(l, (e + m) as usize)] += lead * (-(j as f64) / m as f64) * b1;
+        }
+    }
+    let xv = if s.swapped { "y" } else { "x" };
+    normalize(r, alpha, format!("{xv}^(-1/{m}) (at the point at infinity)"))
+}
+
+fn gcd(a: i32, b: i32) -> i32 {
+    if b == 0 {
+        a.abs()
+    } else {
+        gcd(b, a % b)
+    }
+}
+
+pub fn krichever_at(s: &Superelliptic, r: &RiemannMatrix, place: Place) -> Result<KricheverData, String> {
+    match place {
+        Place::Infinity => at_infinity(s, r),
+        Place::Finite(xp, yp) => krichever_superelliptic(s, r, xp, yp),
+    }
+}
+
 pub fn krichever_superelliptic(
     s: &Superelliptic,
     r: &RiemannMatrix,
     xp: C64,
     yp: C64,
 ) -> Result<KricheverData, String> {
-    let f: Vec<C64> = s.f.0.iter().map(|c| C64::new(kelp_lang::number::to_f64(c), 0.0)).collect();
+    let f = coefficients(s);
     let m = s.m as f64;
     let (f0, g1, g2) = expand(&f, xp);
     let scale = f.iter().enumerate().map(|(k, c)| c.norm() * xp.norm().powi(k as i32)).sum::<f64>().max(1.0);
@@ -57,15 +158,14 @@ pub fn krichever_superelliptic(
         return Err(format!("the point is not on the curve: y^{} - f(x) = {:.3e} there", s.m, off));
     }
     if yp.norm() < 1e-12 * scale.powf(1.0 / m) {
-        return Err(
-            "the point is a branch point (y = 0); the local parameter there is y, which is not supported yet".into()
-        );
+        // f0 = f(x_P) = 0 here, so `expand`'s ratios are useless: take f1, f2 directly.
+        let (f1, f2) = taylor12(&f, xp);
+        return at_branch_point(s, r, xp, f1, f2);
     }
     let xv = if s.swapped { "y" } else { "x" };
     let diffs = &r.periods.differentials;
-    let g = diffs.len();
     // omega_l / d lam = x^p y^-j with x = x_P + lam and y^-j = y_P^-j (f / f0)^(-j/m).
-    let mut alpha = DMatrix::<C64>::zeros(g, 3);
+    let mut alpha = DMatrix::<C64>::zeros(diffs.len(), 3);
     for (l, d) in diffs.iter().enumerate() {
         let e = -(d.j as f64) / m;
         // (1 + g1 lam + g2 lam^2)^e = 1 + a1 lam + a2 lam^2 + ...
@@ -80,8 +180,20 @@ pub fn krichever_superelliptic(
         alpha[(l, 1)] = lead * (xp1 + xp0 * a1);
         alpha[(l, 2)] = lead * (xp2 + xp1 * a1 + xp0 * a2);
     }
-    let ainv = r.a_basis.clone().try_inverse().ok_or("the a-period matrix is singular")?;
-    let n = ainv * alpha;
-    let col = |k: usize| (0..g).map(|j| n[(j, k)]).collect::<Vec<_>>();
-    Ok(KricheverData { u: col(0), v: col(1), w: col(2), local_parameter: format!("{xv} - {xv}_P") })
+    normalize(r, alpha, format!("{xv} - {xv}_P"))
+}
+
+/// f'(x0) and f''(x0) / 2.
+fn taylor12(f: &[C64], x0: C64) -> (C64, C64) {
+    let (mut d1, mut d2) = (C64::new(0.0, 0.0), C64::new(0.0, 0.0));
+    for (k, c) in f.iter().enumerate() {
+        let k = k as i32;
+        if k >= 1 {
+            d1 += *c * k as f64 * x0.powi(k - 1);
+        }
+        if k >= 2 {
+            d2 += *c * (k * (k - 1)) as f64 / 2.0 * x0.powi(k - 2);
+        }
+    }
+    (d1, d2)
 }
