@@ -583,6 +583,13 @@ impl Evaluator<'_> {
             (OutputKind::Sample, "csv") => files.push((path.value.clone(), sample::csv(&grid))),
             (OutputKind::Sample, "json") => files.push((path.value.clone(), sample::json(&grid, wave_json(&w)))),
             (OutputKind::Sample, "npy") => files.push((path.value.clone(), sample::npy(&grid))),
+            (OutputKind::Plot, "apng") => {
+                // One looping animation over the times, 100 ms per frame.
+                files.push((
+                    path.value.clone(),
+                    picture::apng(&grid, &what, 100).map_err(|m| fail(Code::EvalFailed, span, m))?,
+                ))
+            }
             (OutputKind::Plot, "svg" | "png") => {
                 let frames = grid.t.len();
                 for it in 0..frames {
@@ -607,7 +614,7 @@ impl Evaluator<'_> {
                     Code::EvalFailed,
                     path.span,
                     format!(
-                        "`{}` cannot write `.{ext}` files (sample: .csv, .json, .npy; plot: .svg, .png)",
+                        "`{}` cannot write `.{ext}` files (sample: .csv, .json, .npy; plot: .svg, .png, .apng)",
                         kind.keyword()
                     ),
                 ))

@@ -1099,7 +1099,7 @@ pub fn check_output_path(kind: OutputKind, path: &StrLit) -> Result<(), Diagnost
     let p = path.value.as_str();
     let formats: &[&str] = match kind {
         OutputKind::Sample => &["csv", "json", "npy"],
-        OutputKind::Plot => &["png", "svg"],
+        OutputKind::Plot => &["png", "svg", "apng"],
     };
     let windows_drive = p.len() >= 2 && p.as_bytes()[1] == b':' && p.as_bytes()[0].is_ascii_alphabetic();
     if p.starts_with('/') || p.starts_with('\\') || windows_drive {

@@ -152,3 +152,38 @@ fn water_outputs_carry_units_and_the_caution() {
     let svg = std::fs::read_to_string(d.join("out/flume.svg")).unwrap();
     assert!(svg.contains("eta (m)") && svg.contains("x (m)") && svg.contains("not for coastal engineering"));
 }
+
+/// A time range plotted to `.apng` is one looping animated PNG with a frame per time, on
+/// one colour scale (decoded here with the `png` crate's reader).
+#[test]
+fn a_time_range_becomes_an_animation() {
+    let d = dir("apng");
+    let file = d.join("drift.kelp");
+    std::fs::write(
+        &file,
+        "# invented drift\nwave front = soliton(kappa = [-1, 1], a = [[1, 1]])\n\
+         plot front over x in -6..6 step 0.1, y in -2..2 step 0.5, t in 0..2 step 0.5 to \"out/drift.apng\"\n",
+    )
+    .unwrap();
+    let (code, out, err) = kelp(&["run", file.to_str().unwrap()]);
+    assert_eq!(code, 0, "{out}{err}");
+    let bytes = std::fs::read(d.join("out/drift.apng")).unwrap();
+    let mut reader = png::Decoder::new(std::io::Cursor::new(bytes)).read_info().unwrap();
+    let actl = reader.info().animation_control.expect("an animation control chunk");
+    assert_eq!((actl.num_frames, actl.num_plays), (5, 0));
+    // The crest (u = 2 sech^2(x + t), moving left) passes x = 0 at t = 0: the pixel row
+    // through the middle of the plot is brightest at its centre then, and left of it later.
+    let mut brightest = vec![];
+    let mut buf = vec![0; reader.output_buffer_size().unwrap()];
+    for _ in 0..5 {
+        let info = reader.next_frame(&mut buf).unwrap();
+        let row = 50 + 210; // plot top + half its height
+        let lum = |x: usize| {
+            let i = (row * info.width as usize + x) * 3;
+            buf[i] as u32 + buf[i + 1] as u32 + buf[i + 2] as u32
+        };
+        brightest.push((80..540).max_by_key(|&x| lum(x)).unwrap());
+    }
+    assert!((brightest[0] as i64 - 310).abs() <= 3, "{brightest:?}");
+    assert!(brightest.windows(2).all(|w| w[1] < w[0]), "the crest moves toward -x: {brightest:?}");
+}

@@ -214,6 +214,50 @@ impl Canvas {
 
 pub fn png(g: &Grid, it: usize, what: &str) -> Result<Vec<u8>, String> {
     let f = frame(g, it, what);
+    encode(1, 0, |_| draw(&f))
+}
+
+/// Frames one animation may hold (each is drawn, encoded and dropped in turn).
+pub const MAX_FRAMES: usize = 1000;
+
+/// All times of the grid as one animated PNG (APNG), `delay_ms` per frame, looping, on one
+/// colour scale for all frames (so colours mean the same value throughout).
+pub fn apng(g: &Grid, what: &str, delay_ms: u16) -> Result<Vec<u8>, String> {
+    let (mut lo, mut hi) = (f64::INFINITY, f64::NEG_INFINITY);
+    let frames: Vec<Frame> = (0..g.t.len()).map(|it| frame(g, it, what)).collect();
+    for f in &frames {
+        lo = lo.min(f.lo);
+        hi = hi.max(f.hi);
+    }
+    if frames.len() > MAX_FRAMES {
+        return Err(format!("{} frames; an animation holds at most {MAX_FRAMES}", frames.len()));
+    }
+    let n = frames.len();
+    let mut frames = frames.into_iter();
+    encode(n, delay_ms, |_| draw(&Frame { lo, hi, ..frames.next().expect("one frame per time") }))
+}
+
+fn encode(n: usize, delay_ms: u16, mut canvas: impl FnMut(usize) -> Canvas) -> Result<Vec<u8>, String> {
+    let mut out = vec![];
+    {
+        let mut enc = png::Encoder::new(&mut out, W as u32, H as u32);
+        enc.set_color(png::ColorType::Rgb);
+        enc.set_depth(png::BitDepth::Eight);
+        if n > 1 {
+            enc.set_animated(n as u32, 0).map_err(|e| e.to_string())?;
+            enc.set_frame_delay(delay_ms, 1000).map_err(|e| e.to_string())?;
+        }
+        let mut wr = enc.write_header().map_err(|e| e.to_string())?;
+        for k in 0..n {
+            wr.write_image_data(&canvas(k).px).map_err(|e| e.to_string())?;
+        }
+        wr.finish().map_err(|e| e.to_string())?;
+    }
+    Ok(out)
+}
+
+fn draw(f: &Frame) -> Canvas {
+    let (g, it) = (f.g, f.it);
     let _ = &f.title; // the PNG font has digits and a few letters; the title goes in SVG
     let (l, t, w, h) = PLOT;
     let (nx, ny) = (g.x.len(), g.y.len());
@@ -257,13 +301,5 @@ pub fn png(g: &Grid, it: usize, what: &str) -> Result<Vec<u8>, String> {
         let py = t + h - h * k / 4;
         c.text(bl + bw + 6, py.saturating_sub(7), &label(*v), false);
     }
-    let mut out = vec![];
-    {
-        let mut enc = png::Encoder::new(&mut out, W as u32, H as u32);
-        enc.set_color(png::ColorType::Rgb);
-        enc.set_depth(png::BitDepth::Eight);
-        let mut wr = enc.write_header().map_err(|e| e.to_string())?;
-        wr.write_image_data(&c.px).map_err(|e| e.to_string())?;
-    }
-    Ok(out)
+    c
 }
