@@ -25,7 +25,7 @@ fn period_fail(e: &PeriodError, span: Span, name: &str) -> Fail {
 /// One line saying how a Riemann matrix was obtained.
 pub fn summary(r: &RiemannMatrix, equation: &str) -> String {
     let p = &r.periods;
-    let diffs: Vec<String> = p.differentials.iter().map(|d| d.show()).collect();
+    let diffs = &p.forms;
     format!(
         "genus {} Riemann matrix of {equation} from {}; {}; {} edges, {} nodes (largest rule {}); symmetry defect {:.1e}, smallest eigenvalue of Im tau {:.3}; error <= {:.1e}",
         p.genus,

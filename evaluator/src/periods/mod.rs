@@ -3,6 +3,7 @@
 //! (symmetry defect, smallest eigenvalue of Im tau).
 
 pub mod fingerprint;
+pub mod general;
 pub mod modular;
 pub mod quad;
 pub mod shape;

@@ -47,7 +47,10 @@ impl Differential {
 #[derive(Clone, Debug)]
 pub struct Periods {
     pub genus: usize,
+    /// The differentials y^m = f(x) uses (empty for general plane curves, see `forms`).
     pub differentials: Vec<Differential>,
+    /// How each differential is written, for messages.
+    pub forms: Vec<String>,
     /// A[l][k] = integral of differential l over a_k; B likewise over b_k.
     pub a: DMatrix<C64>,
     pub b: DMatrix<C64>,
@@ -243,6 +246,7 @@ pub fn periods(m: u32, f: &UPoly, tol: f64) -> Result<Periods, PeriodError> {
     let (b, b_error) = combine(&basis.b);
     Ok(Periods {
         genus: g,
+        forms: diffs.iter().map(Differential::show).collect(),
         differentials: diffs,
         a,
         b,

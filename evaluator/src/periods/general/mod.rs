@@ -1,0 +1,457 @@
+//! Riemann matrices of general plane curves from the x-projection as a covering
+//! (conventions file; the method follows Deconinck & van Hoeij, Physica D 152–153 (2001),
+//! with keyhole loops about a base point instead of their path graph):
+//!
+//! 1. a projective change of coordinates with small integers puts the curve in general
+//!    position (y^d has a constant coefficient, the line at infinity meets the curve in d
+//!    distinct points), so x has degree d and is unramified over infinity;
+//! 2. the critical values are the roots of the exact discriminant Res_y(G, G_y);
+//! 3. the fibre over a base point is continued along one keyhole loop per critical value
+//!    (`track`), giving the monodromy (transitive = irreducible; Riemann–Hurwitz genus)
+//!    and the integrals of x^a y^b dx / G_y over every lifted loop (Gauss–Legendre on
+//!    pieces graded toward the critical values; error estimated by a second rule);
+//! 4. `homology` turns the lifted loops into cycles with intersection numbers, and the
+//!    symplectic reduction of `symplectic` into a canonical basis;
+//! 5. `adjoint` gives the holomorphic differentials; tau = A^-1 B as for y^m = f(x).
+
+pub mod adjoint;
+pub mod homology;
+pub mod plane;
+pub mod track;
+
+#[cfg(test)]
+mod tests;
+
+use super::superelliptic::{PeriodError, Periods};
+use crate::algebra::bivar::{resultant_v, P2};
+use crate::algebra::curve::CurveFacts;
+use crate::algebra::roots::refined_roots;
+use kelp_lang::number::to_f64;
+use kelp_lang::poly::Poly;
+use nalgebra::DMatrix;
+use num_bigint::BigInt;
+use num_complex::Complex64 as C64;
+use num_rational::BigRational;
+use num_traits::Zero;
+use plane::Plane;
+
+/// What the covering gave, besides the periods (for messages and tests).
+#[derive(Clone, Debug)]
+pub struct Covering {
+    /// Old coordinates = M (new coordinates).
+    pub change: [[i64; 3]; 3],
+    pub sheets: usize,
+    pub critical: Vec<C64>,
+    pub monodromy: Vec<Vec<usize>>,
+    pub riemann_hurwitz_genus: i64,
+    pub steps: usize,
+}
+
+fn q(n: i64) -> BigRational {
+    BigRational::from_integer(BigInt::from(n))
+}
+
+/// F(M (X, Y, Z)) for a homogeneous F.
+fn substitute(f: &Poly, m: &[[i64; 3]; 3]) -> Poly {
+    let row = |r: usize| {
+        (0..3).fold(Poly::zero(), |acc, c| if m[r][c] == 0 { acc } else { acc.add(&Poly::var(c).scale(&q(m[r][c]))) })
+    };
+    let (x, y, z) = (row(0), row(1), row(2));
+    let mut out = Poly::zero();
+    for (e, c) in &f.terms {
+        out = out.add(&x.pow(e[0]).mul(&y.pow(e[1])).mul(&z.pow(e[2])).scale(c));
+    }
+    out
+}
+
+/// G(1, y, 0) square-free of degree d: x is unramified over infinity and has degree d.
+fn in_general_position(g: &Poly, d: u32) -> bool {
+    let mut c = vec![BigRational::zero(); d as usize + 1];
+    for (e, v) in &g.terms {
+        if e[2] == 0 {
+            c[e[1] as usize] += v;
+        }
+    }
+    let p = crate::algebra::upoly::UPoly::new(c);
+    p.degree() == Some(d as usize) && p.gcd(&p.derivative()).degree() == Some(0)
+}
+
+fn general_position(f: &Poly, d: u32) -> Option<([[i64; 3]; 3], Poly)> {
+    let mut candidates = vec![[[1, 0, 0], [0, 1, 0], [0, 0, 1]]];
+    for (a, b, c) in
+        [(1, 0, 0), (0, 0, 1), (1, 0, 1), (0, 1, 1), (2, 0, 1), (1, 1, 2), (3, 1, 1), (-1, 2, 3), (2, -3, 5)]
+    {
+        candidates.push([[1, a, 0], [0, 1, 0], [b, c, 1]]);
+        candidates.push([[1, 0, 0], [a, 1, 0], [b, c, 1]]);
+    }
+    candidates.into_iter().find_map(|m| {
+        let g = substitute(f, &m);
+        in_general_position(&g, d).then_some((m, g))
+    })
+}
+
+/// Singular points of the affine chart, found numerically over the critical values and
+/// refined by Newton's method on two derivatives of order m - 1.
+fn singular_points(g: &Plane, critical: &[C64]) -> Vec<(C64, C64, u32)> {
+    let mut found: Vec<(C64, C64, u32)> = vec![];
+    for &x0 in critical {
+        let fib = g.fibre(x0);
+        for y0 in plane::roots(&fib) {
+            let scale = g.size() * (1.0 + x0.norm()).powi(g.d as i32) * (1.0 + y0.norm()).powi(g.d as i32);
+            let small = |v: C64| v.norm() < 1e-6 * scale;
+            let (_, gx, gy) = g.eval(x0, y0);
+            if !(small(gx) && small(gy)) {
+                continue;
+            }
+            // Multiplicity: the lowest order with a derivative clearly nonzero.
+            let m = (2..=g.d as u32)
+                .find(|&k| (0..=k).any(|b| !small(g.partial((k - b) as usize, b as usize, x0, y0))))
+                .unwrap_or(g.d as u32);
+            let (mut x, mut y) = (x0, y0);
+            let o = (m - 1) as usize;
+            for _ in 0..30 {
+                let (f1, f2) = (g.partial(o, 0, x, y), g.partial(0, o, x, y));
+                let (f1x, f1y) = (g.partial(o + 1, 0, x, y), g.partial(o, 1, x, y));
+                let (f2x, f2y) = (g.partial(1, o, x, y), g.partial(0, o + 1, x, y));
+                let det = f1x * f2y - f1y * f2x;
+                if det.norm() == 0.0 {
+                    break;
+                }
+                let dx = (f1 * f2y - f1y * f2) / det;
+                let dy = (f1x * f2 - f1 * f2x) / det;
+                x -= dx;
+                y -= dy;
+                if dx.norm() + dy.norm() < 1e-15 * (1.0 + x.norm() + y.norm()) {
+                    break;
+                }
+            }
+            if !found.iter().any(|&(a, b, _)| (a - x).norm() + (b - y).norm() < 1e-6 * (1.0 + x.norm() + y.norm())) {
+                found.push((x, y, m));
+            }
+        }
+    }
+    found
+}
+
+fn dist_to_segment(p: C64, a: C64, b: C64) -> f64 {
+    let ab = b - a;
+    let t = (((p - a) * ab.conj()).re / ab.norm_sqr()).clamp(0.0, 1.0);
+    (p - (a + ab * t)).norm()
+}
+
+/// A base point whose rays to the critical values stay clear of the other critical values.
+fn base_point(b: &[C64]) -> Result<C64, PeriodError> {
+    let centre = b.iter().sum::<C64>() / b.len() as f64;
+    let r = 1.0 + b.iter().map(|z| (z - centre).norm()).fold(0.0, f64::max);
+    let score = |b0: C64| -> f64 {
+        let mut s = b.iter().map(|z| (z - b0).norm()).fold(f64::INFINITY, f64::min);
+        for (i, bi) in b.iter().enumerate() {
+            for (j, bj) in b.iter().enumerate() {
+                if i != j {
+                    s = s.min(dist_to_segment(*bj, b0, *bi));
+                }
+            }
+        }
+        s
+    };
+    let best = (0..96)
+        .map(|k| {
+            let k = k as f64;
+            centre + C64::from_polar(r * (0.11 + 0.9 * ((k * 0.618_034) % 1.0)), k * 2.399_963 + 0.3)
+        })
+        .map(|z| (score(z), z))
+        .max_by(|a, c| a.0.total_cmp(&c.0))
+        .expect("candidates");
+    if !(best.0 > 1e-9 * r) {
+        return Err(PeriodError::Accuracy("no base point keeps its paths clear of the critical values".into()));
+    }
+    Ok(best.1)
+}
+
+/// A piece of path: x(t) for t in [-1, 1], and dx/dt.
+#[derive(Clone, Copy)]
+enum Piece {
+    Segment(C64, C64),
+    /// Centre, radius, start and end angle.
+    Arc(C64, f64, f64, f64),
+}
+
+impl Piece {
+    fn at(&self, t: f64) -> (C64, C64) {
+        match *self {
+            Piece::Segment(a, b) => ((a + b) * 0.5 + (b - a) * 0.5 * t, (b - a) * 0.5),
+            Piece::Arc(c, r, p0, p1) => {
+                let phi = p0 + (p1 - p0) * (t + 1.0) / 2.0;
+                let e = C64::from_polar(r, phi);
+                (c + e, C64::new(0.0, 1.0) * e * ((p1 - p0) / 2.0))
+            }
+        }
+    }
+}
+
+/// Rules compared on every piece: the larger gives the value, the difference the estimate.
+const RULES: (usize, usize) = (16, 24);
+
+struct Walk<'a> {
+    g: &'a Plane,
+    monomials: &'a [(u32, u32)],
+    steps: usize,
+    nodes: usize,
+}
+
+impl Walk<'_> {
+    /// Integrals over `pieces` of every monomial for every sheet, continuing `ys`; returns
+    /// the integrals [sheet][monomial], the error estimate and the roots at the end.
+    fn integrate(&mut self, pieces: &[Piece], ys: &[C64]) -> Result<(Vec<Vec<C64>>, f64, Vec<C64>), PeriodError> {
+        let d = ys.len();
+        let k = self.monomials.len();
+        let mut total = vec![vec![C64::new(0.0, 0.0); k]; d];
+        let mut err = 0.0f64;
+        let mut cur = ys.to_vec();
+        let (lo, hi) = (
+            super::quad::rule(super::quad::Weight::symmetric(0, 1), RULES.0),
+            super::quad::rule(super::quad::Weight::symmetric(0, 1), RULES.1),
+        );
+        for piece in pieces {
+            // Both rules' nodes in order along the piece, tagged with their weights.
+            let mut nodes: Vec<(f64, f64, bool)> =
+                lo.nodes.iter().zip(&lo.weights).map(|(&t, &w)| (t, w, false)).collect();
+            nodes.extend(hi.nodes.iter().zip(&hi.weights).map(|(&t, &w)| (t, w, true)));
+            nodes.sort_by(|a, b| a.0.total_cmp(&b.0));
+            let (mut x, _) = piece.at(-1.0);
+            let mut sums = [vec![vec![C64::new(0.0, 0.0); k]; d], vec![vec![C64::new(0.0, 0.0); k]; d]];
+            for (t, w, big) in nodes {
+                let (xn, dxdt) = piece.at(t);
+                cur = track::continue_to(self.g, x, &cur, xn, &mut self.steps).map_err(PeriodError::Accuracy)?;
+                x = xn;
+                self.nodes += 1;
+                for (s, &y) in cur.iter().enumerate() {
+                    let (_, _, gy) = self.g.eval(x, y);
+                    let base = dxdt * w / gy;
+                    for (m, &(a, b)) in self.monomials.iter().enumerate() {
+                        sums[big as usize][s][m] += base * x.powi(a as i32) * y.powi(b as i32);
+                    }
+                }
+            }
+            let (xe, _) = piece.at(1.0);
+            cur = track::continue_to(self.g, x, &cur, xe, &mut self.steps).map_err(PeriodError::Accuracy)?;
+            for s in 0..d {
+                for m in 0..k {
+                    err = err.max((sums[1][s][m] - sums[0][s][m]).norm());
+                    total[s][m] += sums[1][s][m];
+                }
+            }
+        }
+        Ok((total, err * pieces.len() as f64, cur))
+    }
+}
+
+/// The sheets' order after one counterclockwise turn: sigma[s] = the sheet where the root
+/// that started as sheet s ends.
+fn permutation(start: &[C64], end: &[C64]) -> Result<Vec<usize>, PeriodError> {
+    let sep = track::separations(start);
+    let mut p = vec![usize::MAX; start.len()];
+    for (s, e) in end.iter().enumerate() {
+        let (k, dist) = start
+            .iter()
+            .enumerate()
+            .map(|(k, z)| (k, (z - e).norm()))
+            .min_by(|a, b| a.1.total_cmp(&b.1))
+            .expect("a fibre");
+        if dist > sep[k] / 4.0 || p.contains(&k) {
+            return Err(PeriodError::Accuracy("a loop did not close up on the fibre it started from".into()));
+        }
+        p[s] = k;
+    }
+    Ok(p)
+}
+
+pub struct General {
+    pub periods: Periods,
+    pub covering: Covering,
+}
+
+/// Periods of an irreducible plane curve (affine or projective equation) with the exact
+/// facts of the curve algebra.
+pub fn periods(poly: &Poly, projective: bool, facts: &CurveFacts, genus: i64) -> Result<General, PeriodError> {
+    let f = crate::algebra::curve::homogeneous(poly, projective);
+    let d = f.degree().unwrap_or(0);
+    if genus < 1 {
+        return Err(PeriodError::NoMatrix(format!("the curve has genus {genus}")));
+    }
+    let singular_ok = facts.rational.iter().all(|p| p.local.as_ref().is_ok_and(|l| l.tree.len() <= 1))
+        && facts.irrational.iter().all(|p| matches!(&p.local, Some(Ok(l)) if l.tree.len() <= 1));
+    if !singular_ok {
+        return Err(PeriodError::Unsupported(
+            "singular points that one blow-up does not resolve (tacnodes and the like) need adjoint conditions at infinitely near points, which are not built yet".into(),
+        ));
+    }
+    let (change, g) = general_position(&f, d).ok_or_else(|| {
+        PeriodError::Unsupported("no small change of coordinates puts the curve in general position".into())
+    })?;
+    let chart = P2::chart(&g, 2);
+    let plane = Plane::from_terms(chart.terms.iter().map(|(&m, c)| (m, to_f64(c))), d as usize);
+    let disc = resultant_v(&chart, &chart.deriv(1));
+    if disc.is_zero() {
+        return Err(PeriodError::NoMatrix("the equation has a repeated factor".into()));
+    }
+    let critical: Vec<C64> = refined_roots(&disc.squarefree()).into_iter().map(|(z, _)| z).collect();
+    let singular = singular_points(&plane, &critical);
+    let numeric_delta: i64 = singular.iter().map(|&(_, _, m)| (m * (m - 1) / 2) as i64).sum();
+    let arithmetic = ((d - 1) * (d - 2) / 2) as i64;
+    if arithmetic - numeric_delta != genus {
+        return Err(PeriodError::Accuracy(format!(
+            "the singular points found numerically ({}) give genus {}, the exact algebra {genus}",
+            singular.len(),
+            arithmetic - numeric_delta
+        )));
+    }
+    let diffs = adjoint::holomorphic(&plane, &singular, genus as usize).map_err(PeriodError::Accuracy)?;
+
+    let b0 = base_point(&critical)?;
+    let fibre0 = plane::roots(&plane.fibre(b0));
+    let n = critical.len();
+    let mut walk = Walk { g: &plane, monomials: &diffs.monomials, steps: 0, nodes: 0 };
+    let mut sigma = vec![];
+    // loop_periods[i][s][monomial], and each loop's error estimate.
+    let mut loop_periods = vec![];
+    let mut loop_errors = vec![];
+    for (i, &bi) in critical.iter().enumerate() {
+        let mut r = (bi - b0).norm() / 2.0;
+        for (j, &bj) in critical.iter().enumerate() {
+            if j != i {
+                r = r.min((bi - bj).norm() / 2.0).min(dist_to_segment(bi, b0, bj));
+            }
+        }
+        let r = 0.4 * r;
+        let u = (bi - b0) / (bi - b0).norm();
+        let p = bi - u * r;
+        // The segment in pieces no longer than half their distance to the critical values.
+        let mut pieces = vec![];
+        let mut a = b0;
+        while (p - a).norm() > 1e-15 * (1.0 + p.norm()) {
+            let near = critical.iter().map(|z| (z - a).norm()).fold(f64::INFINITY, f64::min);
+            let len = (0.5 * near).min((p - a).norm());
+            let next = if len >= (p - a).norm() { p } else { a + u * len };
+            pieces.push(Piece::Segment(a, next));
+            a = next;
+        }
+        let (seg, seg_err, at_p) = walk.integrate(&pieces, &fibre0)?;
+        let phi0 = (p - bi).arg();
+        let arcs: Vec<Piece> = (0..16)
+            .map(|k| {
+                let s = std::f64::consts::TAU / 16.0;
+                Piece::Arc(bi, r, phi0 + s * k as f64, phi0 + s * (k + 1) as f64)
+            })
+            .collect();
+        let (circ, circ_err, back) = walk.integrate(&arcs, &at_p)?;
+        let perm = permutation(&at_p, &back)?;
+        let per: Vec<Vec<C64>> = (0..plane.d)
+            .map(|s| (0..diffs.monomials.len()).map(|m| seg[s][m] + circ[s][m] - seg[perm[s]][m]).collect())
+            .collect();
+        loop_periods.push(per);
+        loop_errors.push(2.0 * seg_err + circ_err);
+        sigma.push(perm);
+    }
+    let dd = plane.d as i64;
+    let rh = 1 - dd + sigma.iter().map(|p| dd - homology::cycle_count(p) as i64).sum::<i64>() / 2;
+    // Infinity is unramified, so the loops in counterclockwise order of their rays compose
+    // to the identity: a check of the whole continuation.
+    let mut order: Vec<usize> = (0..n).collect();
+    order.sort_by(|&a, &b| (critical[a] - b0).arg().total_cmp(&(critical[b] - b0).arg()));
+    let mut rank = vec![0; n];
+    for (k, &i) in order.iter().enumerate() {
+        rank[i] = k;
+    }
+    let composed =
+        order.iter().fold((0..plane.d).collect::<Vec<_>>(), |acc, &i| acc.iter().map(|&s| sigma[i][s]).collect());
+    if composed.iter().enumerate().any(|(s, &t)| s != t) {
+        return Err(PeriodError::Accuracy("the loops do not compose to the identity around infinity".into()));
+    }
+    let cycles = homology::fundamental_cycles(plane.d, &sigma)
+        .ok_or_else(|| PeriodError::NoMatrix("the curve is reducible: its monodromy group is not transitive".into()))?;
+    if rh != genus {
+        return Err(PeriodError::Accuracy(format!(
+            "Riemann–Hurwitz from the monodromy gives genus {rh}, the exact algebra {genus}"
+        )));
+    }
+    let k: Vec<Vec<i64>> =
+        cycles.iter().map(|a| cycles.iter().map(|b| homology::intersection(a, b, &sigma, &rank)).collect()).collect();
+    for i in 0..k.len() {
+        for j in 0..i {
+            if k[i][j] != -homology::intersection(&cycles[j], &cycles[i], &sigma, &rank) {
+                return Err(PeriodError::Accuracy("the intersection numbers are not skew-symmetric".into()));
+            }
+        }
+    }
+    let basis = super::symplectic::symplectic_basis(&k).map_err(PeriodError::Accuracy)?;
+    if basis.a.len() as i64 != genus {
+        return Err(PeriodError::Accuracy(format!(
+            "the cycles give {} symplectic pairs for genus {genus}",
+            basis.a.len()
+        )));
+    }
+    // Periods of the monomial differentials over each fundamental cycle.
+    let km = diffs.monomials.len();
+    let cycle_periods: Vec<(Vec<C64>, f64)> = cycles
+        .iter()
+        .map(|c| {
+            let mut v = vec![C64::new(0.0, 0.0); km];
+            let mut e = 0.0;
+            for st in c {
+                let sign = if st.forward { 1.0 } else { -1.0 };
+                for m in 0..km {
+                    v[m] += loop_periods[st.lp][st.sheet][m] * sign;
+                }
+                e += loop_errors[st.lp];
+            }
+            (v, e)
+        })
+        .collect();
+    let nb = &diffs.basis;
+    let column_sum = (0..genus as usize).map(|l| (0..km).map(|m| nb[(m, l)].norm()).sum::<f64>()).fold(0.0, f64::max);
+    let assemble = |vecs: &[Vec<i64>]| -> (DMatrix<C64>, f64) {
+        let g = genus as usize;
+        let mut out = DMatrix::<C64>::zeros(g, g);
+        let mut err = 0.0f64;
+        for (j, coeffs) in vecs.iter().enumerate() {
+            let mut e = 0.0;
+            for (c, &w) in coeffs.iter().enumerate() {
+                if w == 0 {
+                    continue;
+                }
+                e += (w as f64).abs() * cycle_periods[c].1;
+                for l in 0..g {
+                    let val: C64 = (0..km).map(|m| nb[(m, l)] * cycle_periods[c].0[m]).sum();
+                    out[(l, j)] += val * w as f64;
+                }
+            }
+            err = err.max(e * column_sum);
+        }
+        (out, err)
+    };
+    let (a, a_error) = assemble(&basis.a);
+    let (b, b_error) = assemble(&basis.b);
+    let covering = Covering {
+        change,
+        sheets: plane.d,
+        critical: critical.clone(),
+        monodromy: sigma,
+        riemann_hurwitz_genus: rh,
+        steps: walk.steps,
+    };
+    let periods = Periods {
+        genus: genus as usize,
+        differentials: vec![],
+        forms: diffs.names,
+        a,
+        b,
+        a_error,
+        b_error,
+        branch_points: critical,
+        edges: n,
+        nodes: walk.nodes,
+        largest_rule: RULES.1,
+    };
+    Ok(General { periods, covering })
+}
