@@ -59,7 +59,9 @@ impl Evaluator<'_> {
             return Err(fail(Code::WrongKind, ce.span, "`tau` needs a curve"));
         };
         let r = self.riemann_matrix(&c, reduce, ce.span)?;
-        let eq = recognise(&c.equation.poly, c.equation.projective).map(|s| s.describe()).unwrap_or_default();
+        let eq = recognise(&c.equation.poly, c.equation.projective)
+            .map(|s| s.describe())
+            .unwrap_or_else(|| format!("{} = 0 (by the covering x: curve -> P^1)", c.equation.poly));
         let rows =
             r.tau.row_iter().map(|row| row.iter().map(|v| Num::Complex(*v)).collect::<Vec<_>>()).collect::<Vec<_>>();
         Ok(Valued { value: Value::Matrix(rows), error_bound: r.error, reason: Some(summary(&r, &eq)) })
@@ -72,15 +74,7 @@ impl Evaluator<'_> {
         span: Span,
     ) -> Result<RiemannMatrix, Fail> {
         let Some(shape) = recognise(&c.equation.poly, c.equation.projective) else {
-            return Err(fail(
-                Code::NotSupported,
-                span,
-                format!(
-                    "`tau({})` is not supported yet: Riemann matrices are computed for curves of the form \
-                     y^m = f(x) (or x^m = f(y)); general plane curves are not supported yet",
-                    c.name
-                ),
-            ));
+            return self.general_matrix(c, reduce, span);
         };
         let accuracy = self.checked.settings.accuracy;
         let p = c
@@ -105,6 +99,32 @@ impl Evaluator<'_> {
                 }
             }
         }
+        riemann_matrix((*p).clone(), reduce).map_err(|e| period_fail(&e, span, &c.name))
+    }
+}
+
+impl Evaluator<'_> {
+    /// A plane curve not of the form y^m = f(x): the covering route of `periods::general`,
+    /// which needs the exact genus (and checks its own Riemann–Hurwitz genus against it).
+    fn general_matrix(&mut self, c: &Rc<CurveValue>, reduce: bool, span: Span) -> Result<RiemannMatrix, Fail> {
+        let facts = c.facts().ok_or_else(|| {
+            fail(
+                Code::NotSupported,
+                span,
+                format!("`tau({})` is not supported yet above degree {}", c.name, crate::curve_fn::MAX_ALGEBRA_DEGREE),
+            )
+        })?;
+        let genus = facts.genus().map_err(|e| match e {
+            crate::algebra::curve::NoGenus::Unsupported(m) => {
+                fail(Code::NotSupported, span, format!("`tau({})` needs the genus first: {m}", c.name))
+            }
+            other => fail(Code::EvalFailed, span, format!("`{}` has no Riemann matrix: {}", c.name, other.message())),
+        })?;
+        let p = c
+            .periods
+            .get_or_init(|| crate::periods::general_memo(&c.equation.poly, c.equation.projective, &facts, genus))
+            .clone()
+            .map_err(|e| period_fail(&e, span, &c.name))?;
         riemann_matrix((*p).clone(), reduce).map_err(|e| period_fail(&e, span, &c.name))
     }
 }

@@ -30,6 +30,20 @@ pub fn periods_memo(m: u32, f: &crate::algebra::upoly::UPoly, accuracy: f64) -> 
         .get_or((m, f.show("x"), accuracy.to_bits()), || superelliptic::periods(m, f, accuracy).map(Arc::new))
 }
 
+/// Periods of a general plane curve (the covering route), once per equation per process.
+pub fn general_memo(
+    poly: &kelp_lang::poly::Poly,
+    projective: bool,
+    facts: &crate::algebra::curve::CurveFacts,
+    genus: i64,
+) -> Result<Arc<Periods>, PeriodError> {
+    type Key = (String, bool);
+    static MEMO: OnceLock<Memo<Key, Result<Arc<Periods>, PeriodError>>> = OnceLock::new();
+    MEMO.get_or_init(Memo::new).get_or((poly.to_string(), projective), || {
+        general::periods(poly, projective, facts, genus).map(|g| Arc::new(g.periods))
+    })
+}
+
 #[derive(Clone, Debug)]
 pub struct RiemannMatrix {
     pub tau: DMatrix<C64>,

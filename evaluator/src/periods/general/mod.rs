@@ -90,43 +90,51 @@ fn general_position(f: &Poly, d: u32) -> Option<([[i64; 3]; 3], Poly)> {
     })
 }
 
-/// Singular points of the affine chart, found numerically over the critical values and
-/// refined by Newton's method on two derivatives of order m - 1.
-fn singular_points(g: &Plane, critical: &[C64]) -> Vec<(C64, C64, u32)> {
+/// Singular points of the affine chart, found numerically over the critical values: each
+/// fibre root is refined by Newton's method on two derivatives of order m - 1 for every
+/// multiplicity m the exact algebra reports, and kept when G and its first derivatives
+/// vanish there to rounding level.
+fn singular_points(g: &Plane, critical: &[C64], multiplicities: &[u32]) -> Vec<(C64, C64, u32)> {
     let mut found: Vec<(C64, C64, u32)> = vec![];
+    let mut ms = multiplicities.to_vec();
+    ms.sort_unstable_by(|a, b| b.cmp(a));
+    ms.dedup();
+    let zero = |a: usize, b: usize, x: C64, y: C64| {
+        let (v, size) = g.partial_with_size(a, b, x, y);
+        v.norm() <= 1e-9 * size.max(1e-300)
+    };
     for &x0 in critical {
-        let fib = g.fibre(x0);
-        for y0 in plane::roots(&fib) {
-            let scale = g.size() * (1.0 + x0.norm()).powi(g.d as i32) * (1.0 + y0.norm()).powi(g.d as i32);
-            let small = |v: C64| v.norm() < 1e-6 * scale;
-            let (_, gx, gy) = g.eval(x0, y0);
-            if !(small(gx) && small(gy)) {
-                continue;
-            }
-            // Multiplicity: the lowest order with a derivative clearly nonzero.
-            let m = (2..=g.d as u32)
-                .find(|&k| (0..=k).any(|b| !small(g.partial((k - b) as usize, b as usize, x0, y0))))
-                .unwrap_or(g.d as u32);
-            let (mut x, mut y) = (x0, y0);
-            let o = (m - 1) as usize;
-            for _ in 0..30 {
-                let (f1, f2) = (g.partial(o, 0, x, y), g.partial(0, o, x, y));
-                let (f1x, f1y) = (g.partial(o + 1, 0, x, y), g.partial(o, 1, x, y));
-                let (f2x, f2y) = (g.partial(1, o, x, y), g.partial(0, o + 1, x, y));
-                let det = f1x * f2y - f1y * f2x;
-                if det.norm() == 0.0 {
+        for y0 in plane::roots(&g.fibre(x0)) {
+            for &m in &ms {
+                let o = (m - 1) as usize;
+                let (mut x, mut y) = (x0, y0);
+                for _ in 0..40 {
+                    let (f1, f2) = (g.partial(o, 0, x, y), g.partial(0, o, x, y));
+                    let (f1x, f1y) = (g.partial(o + 1, 0, x, y), g.partial(o, 1, x, y));
+                    let (f2x, f2y) = (g.partial(1, o, x, y), g.partial(0, o + 1, x, y));
+                    let det = f1x * f2y - f1y * f2x;
+                    if det.norm() == 0.0 {
+                        break;
+                    }
+                    let dx = (f1 * f2y - f1y * f2) / det;
+                    let dy = (f1x * f2 - f1 * f2x) / det;
+                    x -= dx;
+                    y -= dy;
+                    if dx.norm() + dy.norm() < 1e-15 * (1.0 + x.norm() + y.norm()) {
+                        break;
+                    }
+                }
+                let near = (x - x0).norm() + (y - y0).norm() < 1e-3 * (1.0 + x0.norm() + y0.norm());
+                let singular = (0..m as usize).all(|k| (0..=k).all(|b| zero(k - b, b, x, y)));
+                if near && singular {
+                    if !found
+                        .iter()
+                        .any(|&(a, b, _)| (a - x).norm() + (b - y).norm() < 1e-7 * (1.0 + x.norm() + y.norm()))
+                    {
+                        found.push((x, y, m));
+                    }
                     break;
                 }
-                let dx = (f1 * f2y - f1y * f2) / det;
-                let dy = (f1x * f2 - f1 * f2x) / det;
-                x -= dx;
-                y -= dy;
-                if dx.norm() + dy.norm() < 1e-15 * (1.0 + x.norm() + y.norm()) {
-                    break;
-                }
-            }
-            if !found.iter().any(|&(a, b, _)| (a - x).norm() + (b - y).norm() < 1e-6 * (1.0 + x.norm() + y.norm())) {
-                found.push((x, y, m));
             }
         }
     }
@@ -296,7 +304,23 @@ pub fn periods(poly: &Poly, projective: bool, facts: &CurveFacts, genus: i64) ->
         return Err(PeriodError::NoMatrix("the equation has a repeated factor".into()));
     }
     let critical: Vec<C64> = refined_roots(&disc.squarefree()).into_iter().map(|(z, _)| z).collect();
-    let singular = singular_points(&plane, &critical);
+    let multiplicities: Vec<u32> = facts
+        .rational
+        .iter()
+        .filter_map(|p| p.local.as_ref().ok().map(|l| l.multiplicity))
+        .chain(facts.irrational.iter().filter_map(|p| match &p.local {
+            Some(Ok(l)) => Some(l.multiplicity),
+            _ => None,
+        }))
+        .collect();
+    let singular = singular_points(&plane, &critical, &multiplicities);
+    if singular.len() != facts.singular_count() {
+        return Err(PeriodError::Accuracy(format!(
+            "{} singular points found numerically, the exact algebra has {}",
+            singular.len(),
+            facts.singular_count()
+        )));
+    }
     let numeric_delta: i64 = singular.iter().map(|&(_, _, m)| (m * (m - 1) / 2) as i64).sum();
     let arithmetic = ((d - 1) * (d - 2) / 2) as i64;
     if arithmetic - numeric_delta != genus {

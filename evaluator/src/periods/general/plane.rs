@@ -45,7 +45,14 @@ impl Plane {
 
     /// The partial derivative d^(a+b) G / dx^a dy^b at a point.
     pub fn partial(&self, a: usize, b: usize, x: C64, y: C64) -> C64 {
+        self.partial_with_size(a, b, x, y).0
+    }
+
+    /// The partial derivative and the sum of its terms' moduli (the scale its rounding
+    /// error and any "is it zero" test are measured against).
+    pub fn partial_with_size(&self, a: usize, b: usize, x: C64, y: C64) -> (C64, f64) {
         let mut s = C64::new(0.0, 0.0);
+        let mut size = 0.0;
         for (j, row) in self.c.iter().enumerate() {
             if j < b {
                 continue;
@@ -56,10 +63,12 @@ impl Plane {
                 }
                 let fx: f64 = ((i - a + 1)..=i).map(|k| k as f64).product();
                 let fy: f64 = ((j - b + 1)..=j).map(|k| k as f64).product();
-                s += v * fx * fy * x.powi((i - a) as i32) * y.powi((j - b) as i32);
+                let t = v * fx * fy * x.powi((i - a) as i32) * y.powi((j - b) as i32);
+                s += t;
+                size += t.norm();
             }
         }
-        s
+        (s, size)
     }
 
     /// Largest coefficient modulus (the scale of G on the unit bidisc).
