@@ -26,14 +26,18 @@ fn period_fail(e: &PeriodError, span: Span, name: &str) -> Fail {
 pub fn summary(r: &RiemannMatrix, equation: &str) -> String {
     let p = &r.periods;
     let diffs = &p.forms;
+    let paths = if p.plane.is_some() {
+        format!("{} keyhole loops about the critical values, {} quadrature nodes (rules of 16 and {} points; error estimated)", p.edges, p.nodes, p.largest_rule)
+    } else {
+        format!("{} edges, {} nodes (largest rule {})", p.edges, p.nodes, p.largest_rule)
+    };
+    // The covering route compares two rules: an estimate, not the superelliptic route's bound.
+    let err = if p.plane.is_some() { "estimated error" } else { "error <=" };
     format!(
-        "genus {} Riemann matrix of {equation} from {}; {}; {} edges, {} nodes (largest rule {}); symmetry defect {:.1e}, smallest eigenvalue of Im tau {:.3}; error <= {:.1e}",
+        "genus {} Riemann matrix of {equation} from {}; {}; {paths}; symmetry defect {:.1e}, smallest eigenvalue of Im tau {:.3}; {err} {:.1e}",
         p.genus,
         diffs.join(", "),
         if r.reduced.is_some() { "Siegel-reduced" } else { "not reduced" },
-        p.edges,
-        p.nodes,
-        p.largest_rule,
         r.symmetry_defect,
         r.min_eig_im,
         r.error

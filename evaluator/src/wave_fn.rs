@@ -338,14 +338,29 @@ impl Evaluator<'_> {
             _ => return Err(fail(Code::WrongKind, pe.span, "`at` must be a point (x, y) or (x : y : z)")),
         }
         let Some(shape) = recognise(&c.equation.poly, c.equation.projective) else {
-            return Err(fail(
-                Code::NotSupported,
-                ce.span,
-                format!(
-                    "`krichever({})` is not supported yet: it needs the Riemann matrix, computed so far for curves y^m = f(x)",
-                    c.name
-                ),
-            ));
+            let Some((xp, yp)) = at else {
+                return Err(fail(
+                    Code::NotSupported,
+                    pe.span,
+                    "points at infinity are supported for curves y^m = f(x) only; pick a finite point",
+                ));
+            };
+            let r = self.riemann_matrix(&c, true, ce.span)?;
+            let forms = r
+                .periods
+                .plane
+                .clone()
+                .ok_or_else(|| fail(Code::NotSupported, ce.span, "no differentials to expand"))?;
+            let f = crate::algebra::curve::homogeneous(&c.equation.poly, c.equation.projective);
+            let chart = crate::algebra::bivar::P2::chart(&f, 2);
+            let d = f.degree().unwrap_or(0) as usize;
+            let mut user = vec![vec![C64::new(0.0, 0.0); d + 1]; d + 1];
+            for (&(i, j), v) in &chart.terms {
+                user[j as usize][i as usize] += kelp_lang::number::to_f64(v);
+            }
+            let k = crate::waves::krichever::krichever_general(&forms, &r, &user, xp, yp)
+                .map_err(|m| fail(Code::EvalFailed, pe.span, format!("`krichever({})`: {m}", c.name)))?;
+            return self.finish_krichever(&c, ce.span, args, r, k, (xp, yp));
         };
         let place = match (at, at_infinity) {
             (Some((xp, yp)), _) => {
@@ -382,14 +397,28 @@ impl Evaluator<'_> {
             Place::Finite(a, b) => (a, b),
             Place::Infinity => (C64::new(f64::INFINITY, 0.0), C64::new(f64::INFINITY, 0.0)),
         };
+        self.finish_krichever(&c, ce.span, args, r, k, (xp, yp))
+    }
+
+    /// c from Dubrovin's conditions, the shift, and the wave with its description.
+    fn finish_krichever(
+        &mut self,
+        c: &crate::value::CurveValue,
+        cspan: Span,
+        args: &[Arg],
+        r: crate::periods::RiemannMatrix,
+        k: crate::waves::krichever::KricheverData,
+        (xp, yp): (C64, C64),
+    ) -> Result<Valued, Fail> {
+        let ce_span = cspan;
         let (cc, _d, dres) =
-            dubrovin_constants(&r.tau, &k.u, &k.v, &k.w).map_err(|e| crate::theta_fn::theta_error(e, ce.span))?;
+            dubrovin_constants(&r.tau, &k.u, &k.v, &k.w).map_err(|e| crate::theta_fn::theta_error(e, ce_span))?;
         let g = k.u.len();
         let shift = match Self::keyword(args, "shift") {
             Some(e) => self.complex_vector(e, "`shift`", g)?,
             None => vec![C64::new(0.0, 0.0); g],
         };
-        let ctx = ThetaContext::new(&r.tau, 1e-8).map_err(|e| crate::theta_fn::theta_error(e, ce.span))?;
+        let ctx = ThetaContext::new(&r.tau, 1e-8).map_err(|e| crate::theta_fn::theta_error(e, ce_span))?;
         let origin = format!(
             "Krichever's wave of `{}` at {}, local parameter {}; genus {g}, tau error {:.1e}{}; c = {} from Dubrovin's conditions (relative residual {:.1e})",
             c.name,

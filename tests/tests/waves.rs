@@ -277,3 +277,70 @@ fn krichever_at_branch_points_and_infinity_reduces_to_kdv_and_boussinesq() {
     let ev = evaluate(&c, "", &Mode::Check);
     assert!(ev.diagnostics.iter().any(|d| d.message.contains("2 places over x = infinity")), "{:?}", ev.diagnostics);
 }
+
+/// The theta wave of tau with given U, V, W and the c that best fits Dubrovin's conditions.
+fn wave_from(tau: &nalgebra::DMatrix<C64>, u: Vec<C64>, v: Vec<C64>, w: Vec<C64>) -> Wave {
+    let (c, _, _) = kelp_evaluator::waves::theta_wave::dubrovin_constants(tau, &u, &v, &w).unwrap();
+    let g = u.len();
+    Wave {
+        kind: WaveKind::Theta(ThetaWave {
+            ctx: ThetaContext::new(tau, 1e-8).unwrap(),
+            u,
+            v,
+            w,
+            shift: vec![C64::new(0.0, 0.0); g],
+            c,
+            accuracy: 1e-14,
+        }),
+        origin: "assembled".into(),
+    }
+}
+
+// The decisive check on general plane curves (covering route): Krichever's wave of a
+// smooth quartic, of Klein's quartic at a point where y - y_P is the local parameter, and
+// of a nodal quartic solves KP at rounding level; the same construction with U, V, W
+// normalized by a perturbed a-period matrix, or with U, V, W of another curve, does not
+// (each with the c that best fits Dubrovin's conditions, so only U, V, W are wrong).
+#[test]
+fn krichever_on_general_plane_curves_and_mismatched_data() {
+    let src = "curve quartic: x^4 + 2*y^4 + x*y^3 - 3*x^2*y + y - 2 = 0\n\
+               curve klein: x^3*y + y^3*z + z^3*x\n\
+               curve nodal: 5*x^2*y^2 - x^2*z^2 + 13*x*y^2*z - 4*x*y*z^2 - x*z^3 + 7*y^2*z^2 - 4*y*z^3\n\
+               wave wq = krichever(quartic, at = (1, 1))\nwave wk = krichever(klein, at = (0, 0))\n\
+               wave wn = krichever(nodal, at = (1 : -2 : -2))\n";
+    let e = eval(src);
+    let theta = |name: &str| -> ThetaWave {
+        let w = wave(&e, name);
+        let WaveKind::Theta(t) = &w.kind else { panic!() };
+        ThetaWave {
+            ctx: ThetaContext::new(t.ctx.tau(), 1e-8).unwrap(),
+            u: t.u.clone(),
+            v: t.v.clone(),
+            w: t.w.clone(),
+            shift: t.shift.clone(),
+            c: t.c,
+            accuracy: t.accuracy,
+        }
+    };
+    for name in ["wq", "wk", "wn"] {
+        let r = residual(&wave(&e, name));
+        assert!(r < 1e-8, "{name}: residual {r:.2e}");
+    }
+    // A perturbed normalization: (U V W) = A^-1 alpha becomes (A (1 + E))^-1 alpha
+    // = (1 + E)^-1 (U V W), E with entries up to 5%.
+    for name in ["wq", "wk"] {
+        let t = theta(name);
+        let g = t.u.len();
+        let e_mat =
+            nalgebra::DMatrix::<C64>::from_fn(g, g, |i, j| C64::new(0.05 * ((i * 3 + j * 5) % 7) as f64 / 7.0, 0.0));
+        let inv = (nalgebra::DMatrix::<C64>::identity(g, g) + e_mat).try_inverse().unwrap();
+        let apply =
+            |x: &[C64]| (inv.clone() * nalgebra::DVector::from_column_slice(x)).iter().copied().collect::<Vec<_>>();
+        let bad = residual(&wave_from(t.ctx.tau(), apply(&t.u), apply(&t.v), apply(&t.w)));
+        assert!(bad > 1e-4, "{name}: a perturbed normalization only reaches {bad:.2e}");
+    }
+    // U, V, W of Klein's quartic with the smooth quartic's tau.
+    let (tq, tk) = (theta("wq"), theta("wk"));
+    let bad = residual(&wave_from(tq.ctx.tau(), tk.u.clone(), tk.v.clone(), tk.w.clone()));
+    assert!(bad > 1e-4, "another curve's U, V, W only reach {bad:.2e}");
+}

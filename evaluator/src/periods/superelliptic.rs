@@ -51,6 +51,9 @@ pub struct Periods {
     pub differentials: Vec<Differential>,
     /// How each differential is written, for messages.
     pub forms: Vec<String>,
+    /// For a general plane curve: the chart and the differentials as polynomials, so they
+    /// can be expanded at a point (Krichever's construction).
+    pub plane: Option<std::sync::Arc<super::general::PlaneForms>>,
     /// A[l][k] = integral of differential l over a_k; B likewise over b_k.
     pub a: DMatrix<C64>,
     pub b: DMatrix<C64>,
@@ -247,6 +250,7 @@ pub fn periods(m: u32, f: &UPoly, tol: f64) -> Result<Periods, PeriodError> {
     Ok(Periods {
         genus: g,
         forms: diffs.iter().map(Differential::show).collect(),
+        plane: None,
         differentials: diffs,
         a,
         b,

@@ -197,3 +197,165 @@ fn taylor12(f: &[C64], x0: C64) -> (C64, C64) {
     }
     (d1, d2)
 }
+
+/// Truncated power series in the local parameter: coefficients of lam^0..lam^3.
+type S = [C64; 4];
+
+const Z: C64 = C64 { re: 0.0, im: 0.0 };
+
+fn s_mul(a: &S, b: &S) -> S {
+    let mut r = [Z; 4];
+    for i in 0..4 {
+        for j in 0..4 - i {
+            r[i + j] += a[i] * b[j];
+        }
+    }
+    r
+}
+
+fn s_inv(a: &S) -> S {
+    let mut r = [Z; 4];
+    r[0] = C64::new(1.0, 0.0) / a[0];
+    for k in 1..4 {
+        let s: C64 = (1..=k).map(|i| a[i] * r[k - i]).sum();
+        r[k] = -s * r[0];
+    }
+    r
+}
+
+fn s_sub(a: &S, b: &S) -> S {
+    [a[0] - b[0], a[1] - b[1], a[2] - b[2], a[3] - b[3]]
+}
+
+/// The series of sum over c[j][i] x^i y^j, or with `dy` of its derivative in y.
+fn s_bivariate(c: &[Vec<C64>], x: &S, y: &S, dy: bool) -> S {
+    let one = [C64::new(1.0, 0.0), Z, Z, Z];
+    let mut xp = vec![one];
+    let mut yp = vec![one];
+    for _ in 1..c.iter().map(Vec::len).max().unwrap_or(1).max(c.len()) {
+        let (lx, ly) = (*xp.last().unwrap(), *yp.last().unwrap());
+        xp.push(s_mul(&lx, x));
+        yp.push(s_mul(&ly, y));
+    }
+    let mut out = [Z; 4];
+    for (j, row) in c.iter().enumerate() {
+        if dy && j == 0 {
+            continue;
+        }
+        let (yj, w) = if dy { (yp[j - 1], j as f64) } else { (yp[j], 1.0) };
+        for (i, v) in row.iter().enumerate() {
+            if *v == Z {
+                continue;
+            }
+            let t = s_mul(&xp[i], &yj);
+            for k in 0..4 {
+                out[k] += t[k] * *v * w;
+            }
+        }
+    }
+    out
+}
+
+/// Krichever data for a general plane curve: `user` is the curve's own equation in its
+/// chart z = 1 (c[j][i] for x^i y^j), P = (x_P, y_P) a smooth point. The local parameter
+/// is x - x_P when F_y(P) != 0, else y - y_P; the curve is expanded as a power series in
+/// it by Newton's method on series, carried to the covering route's coordinates, and the
+/// differentials expanded there.
+pub fn krichever_general(
+    forms: &crate::periods::general::PlaneForms,
+    r: &RiemannMatrix,
+    user: &[Vec<C64>],
+    xp: C64,
+    yp: C64,
+) -> Result<KricheverData, String> {
+    use crate::periods::general::plane::Plane;
+    let d = user.len().saturating_sub(1);
+    let f = Plane { d, c: user.to_vec() };
+    let (v, size) = f.partial_with_size(0, 0, xp, yp);
+    if v.norm() > 1e-9 * size.max(1e-300) {
+        return Err(format!("the point is not on the curve: F = {:.3e} there (terms of size {size:.3e})", v.norm()));
+    }
+    let (fx, sx) = f.partial_with_size(1, 0, xp, yp);
+    let (fy, sy) = f.partial_with_size(0, 1, xp, yp);
+    let small = |v: C64, s: f64| v.norm() <= 1e-9 * s.max(1e-300);
+    if small(fx, sx) && small(fy, sy) {
+        return Err("the point is a singular point of the curve; Krichever's construction needs a smooth point".into());
+    }
+    let by_x = !small(fy, sy) && fy.norm() >= 1e-3 * fx.norm();
+    // x(lam), y(lam): one of them lam plus a constant, the other by Newton on series.
+    let mut x: S = [xp, Z, Z, Z];
+    let mut y: S = [yp, Z, Z, Z];
+    if by_x {
+        x[1] = C64::new(1.0, 0.0);
+    } else {
+        y[1] = C64::new(1.0, 0.0);
+    }
+    let fx_rows: Vec<Vec<C64>> =
+        user.iter().map(|row| row.iter().enumerate().skip(1).map(|(i, v)| *v * i as f64).collect::<Vec<_>>()).collect();
+    for _ in 0..3 {
+        let val = s_bivariate(user, &x, &y, false);
+        if by_x {
+            let der = s_bivariate(user, &x, &y, true);
+            y = s_sub(&y, &s_mul(&val, &s_inv(&der)));
+        } else {
+            let der = s_bivariate(&fx_rows, &x, &y, false);
+            x = s_sub(&x, &s_mul(&val, &s_inv(&der)));
+        }
+    }
+    // (x : y : 1) = change (X : Y : Z), so (X, Y, Z) = change^-1 (x, y, 1).
+    let m = nalgebra::Matrix3::from_fn(|i, j| forms.change[i][j] as f64);
+    let n = m.try_inverse().ok_or("singular change of coordinates")?;
+    let one: S = [C64::new(1.0, 0.0), Z, Z, Z];
+    let comb = |row: usize| -> S {
+        let mut out = [Z; 4];
+        for (k, s) in [x, y, one].iter().enumerate() {
+            for t in 0..4 {
+                out[t] += s[t] * n[(row, k)];
+            }
+        }
+        out
+    };
+    let (cx, cy, cz) = (comb(0), comb(1), comb(2));
+    if cz[0].norm() < 1e-12 * (cx[0].norm() + cy[0].norm()) {
+        return Err(
+            "the point lies on the line at infinity of the coordinates the periods use; pick another point".into()
+        );
+    }
+    let iz = s_inv(&cz);
+    let (xx, yy) = (s_mul(&cx, &iz), s_mul(&cy, &iz));
+    // omega = P dX / G_Y = -P dY / G_X on the curve: divide by the larger of the two at P
+    // (G_Y vanishes where P is a branch point of the covering's projection).
+    let dxx: S = [xx[1], xx[2] * 2.0, xx[3] * 3.0, Z];
+    let dyy: S = [yy[1], yy[2] * 2.0, yy[3] * 3.0, Z];
+    let gy = s_bivariate(&forms.plane.c, &xx, &yy, true);
+    let gx_rows: Vec<Vec<C64>> = forms
+        .plane
+        .c
+        .iter()
+        .map(|row| row.iter().enumerate().skip(1).map(|(i, v)| *v * i as f64).collect::<Vec<_>>())
+        .collect();
+    let gx = s_bivariate(&gx_rows, &xx, &yy, false);
+    let common = if gy[0].norm() >= gx[0].norm() {
+        s_mul(&dxx, &s_inv(&gy))
+    } else {
+        let q = s_mul(&dyy, &s_inv(&gx));
+        [-q[0], -q[1], -q[2], -q[3]]
+    };
+    let g = forms.basis.ncols();
+    let mut alpha = DMatrix::<C64>::zeros(g, 3);
+    let powers = |s: &S, e: u32| (0..e).fold(one, |acc, _| s_mul(&acc, s));
+    let mono: Vec<S> = forms.monomials.iter().map(|&(a, b)| s_mul(&powers(&xx, a), &powers(&yy, b))).collect();
+    for l in 0..g {
+        let mut p = [Z; 4];
+        for (k, s) in mono.iter().enumerate() {
+            for t in 0..4 {
+                p[t] += s[t] * forms.basis[(k, l)];
+            }
+        }
+        let w = s_mul(&p, &common);
+        for k in 0..3 {
+            alpha[(l, k)] = w[k];
+        }
+    }
+    normalize(r, alpha, if by_x { "x - x_P".into() } else { "y - y_P".into() })
+}

@@ -274,6 +274,17 @@ fn permutation(start: &[C64], end: &[C64]) -> Result<Vec<usize>, PeriodError> {
     Ok(p)
 }
 
+/// The differentials of the covering route: omega_l = sum over monomials of
+/// basis[(m, l)] X^a Y^b dX / G_Y in the chart Z = 1 of the coordinates (X : Y : Z) with
+/// (x : y : z) = change (X, Y, Z).
+#[derive(Clone, Debug)]
+pub struct PlaneForms {
+    pub change: [[i64; 3]; 3],
+    pub plane: Plane,
+    pub monomials: Vec<(u32, u32)>,
+    pub basis: DMatrix<C64>,
+}
+
 pub struct General {
     pub periods: Periods,
     pub covering: Covering,
@@ -467,7 +478,13 @@ pub fn periods(poly: &Poly, projective: bool, facts: &CurveFacts, genus: i64) ->
     let periods = Periods {
         genus: genus as usize,
         differentials: vec![],
-        forms: diffs.names,
+        forms: diffs.names.clone(),
+        plane: Some(std::sync::Arc::new(PlaneForms {
+            change,
+            plane: plane.clone(),
+            monomials: diffs.monomials.clone(),
+            basis: diffs.basis.clone(),
+        })),
         a,
         b,
         a_error,
