@@ -49,3 +49,19 @@ fn trigonal_degree(b: divan::Bencher, degree: usize) {
     tau(3, &p);
     b.bench(|| tau(3, divan::black_box(&p)));
 }
+
+/// The covering route for plane curves that are not y^m = f(x): Klein's quartic (genus 3),
+/// a smooth quintic (genus 6) and a smooth sextic (genus 10) with invented coefficients.
+/// Exact curve facts (singular points, genus) are computed once outside the timing.
+#[divan::bench(args = ["x^3*y + y^3*z + z^3*x", "x^5 + y^5 + z^5 + 3*x^2*y^2*z - 2*x*y^4 + x^3*z^2", "x^6 + y^6 + z^6 - 2*x^3*y^2*z + 5*x*y^5 - x^2*z^4 + y*z^5"])]
+fn covering_route(b: divan::Bencher, src: &str) {
+    let c = kelp_lang::check(&format!("curve c: {src}\n"));
+    let e = c.curves.values().next().expect("a curve");
+    let facts = kelp_evaluator::algebra::curve::analyse(&e.poly, e.projective);
+    let g = facts.genus().expect("a genus");
+    b.bench(|| {
+        let out = kelp_evaluator::periods::general::periods(divan::black_box(&e.poly), e.projective, &facts, g)
+            .expect("periods");
+        riemann_matrix(out.periods, true).expect("tau").error
+    });
+}
