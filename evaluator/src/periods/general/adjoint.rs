@@ -1,10 +1,10 @@
 //! Holomorphic differentials P(x, y) dx / G_y on a plane curve of degree d: deg P <= d - 3,
-//! and at every singular point of multiplicity m whose infinitely near points are all
-//! smooth (nodes, cusps, ordinary multiple points: one blow-up resolves them) P vanishes
-//! to order m - 1 (the adjoint conditions; conventions file, classical). Singular points
-//! with coordinates known numerically give numerical conditions; the basis is their null
-//! space, and its dimension must equal the exact genus.
+//! and P satisfies the adjoint conditions at every singular point and its infinitely near
+//! points (`near`; at an ordinary m-fold point: vanishing to order m - 1; conventions file,
+//! classical). Singular points known numerically give numerical conditions; the basis is
+//! their null space, and its dimension must equal the exact genus.
 
+use super::near::{conditions, LocalPoly};
 use super::plane::Plane;
 use nalgebra::DMatrix;
 use num_complex::Complex64 as C64;
@@ -35,8 +35,14 @@ fn monomial_name(a: u32, b: u32) -> String {
     }
 }
 
-/// `singular`: (x0, y0, multiplicity) in the chart of `plane`.
-pub fn holomorphic(plane: &Plane, singular: &[(C64, C64, u32)], genus: usize) -> Result<Differentials, String> {
+/// `singular`: (x0, y0, multiplicity) in the chart of `plane`; `delta` receives the sum of
+/// the delta invariants found on the way (to be checked against the exact algebra).
+pub fn holomorphic(
+    plane: &Plane,
+    singular: &[(C64, C64, u32)],
+    genus: usize,
+    delta: &mut u64,
+) -> Result<Differentials, String> {
     let d = plane.d as u32;
     let monomials: Vec<(u32, u32)> =
         (0..=d.saturating_sub(3)).flat_map(|t| (0..=t).map(move |b| (t - b, b))).filter(|_| d >= 3).collect();
@@ -49,22 +55,32 @@ pub fn holomorphic(plane: &Plane, singular: &[(C64, C64, u32)], genus: usize) ->
         return Ok(Differentials { monomials, basis: DMatrix::identity(k, k), names });
     }
     let mut rows: Vec<Vec<C64>> = vec![];
-    for &(x0, y0, m) in singular {
-        for order in 0..m.saturating_sub(1) {
-            for beta in 0..=order {
-                let alpha = order - beta;
-                let row: Vec<C64> = monomials
-                    .iter()
-                    .map(|&(a, b)| {
-                        if a < alpha || b < beta {
-                            return C64::new(0.0, 0.0);
-                        }
-                        x0.powi((a - alpha) as i32) * y0.powi((b - beta) as i32) * falling(a, alpha) * falling(b, beta)
-                    })
-                    .collect();
-                let n = row.iter().map(|v| v.norm()).fold(0.0, f64::max).max(1e-300);
-                rows.push(row.into_iter().map(|v| v / n).collect());
+    for &(x0, y0, _) in singular {
+        // The curve and P's monomials as polynomials in (u, v) = (x - x0, y - y0).
+        let n = plane.d;
+        let mut curve = LocalPoly::zero(1, n);
+        let fact = |k: usize| (1..=k).map(|v| v as f64).product::<f64>();
+        for i in 0..=n {
+            for j in 0..=n - i {
+                curve.c[i][j][0] = plane.partial(i, j, x0, y0) / (fact(i) * fact(j));
             }
+        }
+        let mut p = LocalPoly::zero(k, n);
+        for (col, &(a, b)) in monomials.iter().enumerate() {
+            for i in 0..=a as usize {
+                for j in 0..=b as usize {
+                    p.c[i][j][col] += x0.powi(a as i32 - i as i32)
+                        * y0.powi(b as i32 - j as i32)
+                        * (falling(a, i as u32) / fact(i))
+                        * (falling(b, j as u32) / fact(j));
+                }
+            }
+        }
+        let mut point_rows = vec![];
+        *delta += conditions(&curve, &p, &mut point_rows, 0)?;
+        for row in point_rows {
+            let norm = row.iter().map(|v| v.norm()).fold(0.0, f64::max).max(1e-300);
+            rows.push(row.into_iter().map(|v| v / norm).collect());
         }
     }
     // Zero rows pad the matrix to square, so the SVD yields the whole null space.

@@ -16,6 +16,7 @@
 
 pub mod adjoint;
 pub mod homology;
+pub mod near;
 pub mod plane;
 pub mod track;
 
@@ -90,55 +91,105 @@ fn general_position(f: &Poly, d: u32) -> Option<([[i64; 3]; 3], Poly)> {
     })
 }
 
-/// Singular points of the affine chart, found numerically over the critical values: each
-/// fibre root is refined by Newton's method on two derivatives of order m - 1 for every
-/// multiplicity m the exact algebra reports, and kept when G and its first derivatives
-/// vanish there to rounding level.
-fn singular_points(g: &Plane, critical: &[C64], multiplicities: &[u32]) -> Vec<(C64, C64, u32)> {
-    let mut found: Vec<(C64, C64, u32)> = vec![];
-    let mut ms = multiplicities.to_vec();
-    ms.sort_unstable_by(|a, b| b.cmp(a));
-    ms.dedup();
-    let zero = |a: usize, b: usize, x: C64, y: C64| {
-        let (v, size) = g.partial_with_size(a, b, x, y);
-        v.norm() <= 1e-9 * size.max(1e-300)
+/// Singular points of the affine chart, found numerically over the critical values. In
+/// general position the vertical line through a point of multiplicity m meets the curve
+/// there m times (or a few more where it is tangent to a branch), so y0 is a cluster of
+/// fibre roots over a critical value x0 (itself a simple root of the square-free
+/// discriminant, refined in double-double arithmetic): its centroid, refined as the simple
+/// root of a y-derivative of G of the cluster's order, or by Newton's method in both
+/// variables. Near a highly tangent singular point other points make G and its derivatives
+/// small too, so the candidates are ranked by how well they vanish and, for each
+/// multiplicity, as many are taken as the exact algebra reports (`wanted[m]`).
+fn singular_points(
+    g: &Plane,
+    critical: &[C64],
+    wanted: &std::collections::BTreeMap<u32, usize>,
+) -> Vec<(C64, C64, u32)> {
+    let residual = |x: C64, y: C64, m: usize| -> f64 {
+        (0..m)
+            .flat_map(|o| (0..=o).map(move |b| (o - b, b)))
+            .map(|(a, b)| {
+                let (v, size) = g.partial_with_size(a, b, x, y);
+                v.norm() / size.max(1e-300)
+            })
+            .fold(0.0, f64::max)
     };
-    for &x0 in critical {
-        for y0 in plane::roots(&g.fibre(x0)) {
-            for &m in &ms {
-                let o = (m - 1) as usize;
-                let (mut x, mut y) = (x0, y0);
-                for _ in 0..40 {
-                    let (f1, f2) = (g.partial(o, 0, x, y), g.partial(0, o, x, y));
-                    let (f1x, f1y) = (g.partial(o + 1, 0, x, y), g.partial(o, 1, x, y));
-                    let (f2x, f2y) = (g.partial(1, o, x, y), g.partial(0, o + 1, x, y));
-                    let det = f1x * f2y - f1y * f2x;
-                    if det.norm() == 0.0 {
+    let mut found: Vec<(C64, C64, u32)> = vec![];
+    for (&m, &count) in wanted.iter().rev() {
+        let m_us = m as usize;
+        let mut candidates: Vec<(f64, C64, C64)> = vec![];
+        for &x0 in critical {
+            let roots = plane::roots(&g.fibre(x0));
+            for (k, &y) in roots.iter().enumerate() {
+                let mut near: Vec<(f64, usize)> =
+                    roots.iter().enumerate().filter(|&(j, _)| j != k).map(|(j, z)| ((z - y).norm(), j)).collect();
+                near.sort_by(|a, b| a.0.total_cmp(&b.0));
+                let mut points = vec![newton2(g, x0, y, m_us - 1)];
+                for size in m_us..=(m_us + 2).min(g.d) {
+                    if near.len() < size - 1 || near[size - 2].0 > 1e-2 * (1.0 + y.norm()) {
                         break;
                     }
-                    let dx = (f1 * f2y - f1y * f2) / det;
-                    let dy = (f1x * f2 - f1 * f2x) / det;
-                    x -= dx;
-                    y -= dy;
-                    if dx.norm() + dy.norm() < 1e-15 * (1.0 + x.norm() + y.norm()) {
-                        break;
+                    let mut y0 = (y + near[..size - 1].iter().map(|&(_, j)| roots[j]).sum::<C64>()) / size as f64;
+                    for _ in 0..20 {
+                        let (f, fd) = (g.partial(0, size - 1, x0, y0), g.partial(0, size, x0, y0));
+                        if fd.norm() == 0.0 {
+                            break;
+                        }
+                        let step = f / fd;
+                        y0 -= step;
+                        if step.norm() < 1e-16 * (1.0 + y0.norm()) {
+                            break;
+                        }
                     }
+                    points.push((x0, y0));
                 }
-                let near = (x - x0).norm() + (y - y0).norm() < 1e-3 * (1.0 + x0.norm() + y0.norm());
-                let singular = (0..m as usize).all(|k| (0..=k).all(|b| zero(k - b, b, x, y)));
-                if near && singular {
-                    if !found
-                        .iter()
-                        .any(|&(a, b, _)| (a - x).norm() + (b - y).norm() < 1e-7 * (1.0 + x.norm() + y.norm()))
-                    {
-                        found.push((x, y, m));
+                for (x1, y1) in points {
+                    if (x1 - x0).norm() + (y1 - y).norm() < 1e-2 * (1.0 + x0.norm() + y.norm()) {
+                        let r = residual(x1, y1, m_us);
+                        if r.is_finite() {
+                            candidates.push((r, x1, y1));
+                        }
                     }
-                    break;
                 }
             }
         }
+        candidates.sort_by(|a, b| a.0.total_cmp(&b.0));
+        let mut taken = 0;
+        for (r, x, y) in candidates {
+            if taken == count || r > 1e-9 {
+                break;
+            }
+            let close = |a: C64, b: C64| (a - x).norm() + (b - y).norm() < 1e-5 * (1.0 + x.norm() + y.norm());
+            if found.iter().any(|&(a, b, _)| close(a, b)) {
+                continue;
+            }
+            found.push((x, y, m));
+            taken += 1;
+        }
     }
     found
+}
+
+/// Newton's method in (x, y) on d^o G / dx^o and d^o G / dy^o.
+fn newton2(g: &Plane, x0: C64, y0: C64, o: usize) -> (C64, C64) {
+    let (mut x, mut y) = (x0, y0);
+    for _ in 0..40 {
+        let (f1, f2) = (g.partial(o, 0, x, y), g.partial(0, o, x, y));
+        let (f1x, f1y) = (g.partial(o + 1, 0, x, y), g.partial(o, 1, x, y));
+        let (f2x, f2y) = (g.partial(1, o, x, y), g.partial(0, o + 1, x, y));
+        let det = f1x * f2y - f1y * f2x;
+        if det.norm() == 0.0 {
+            break;
+        }
+        let dx = (f1 * f2y - f1y * f2) / det;
+        let dy = (f1x * f2 - f1 * f2x) / det;
+        x -= dx;
+        y -= dy;
+        if dx.norm() + dy.norm() < 1e-15 * (1.0 + x.norm() + y.norm()) {
+            break;
+        }
+    }
+    (x, y)
 }
 
 fn dist_to_segment(p: C64, a: C64, b: C64) -> f64 {
@@ -203,54 +254,115 @@ const RULES: (usize, usize) = (16, 24);
 struct Walk<'a> {
     g: &'a Plane,
     monomials: &'a [(u32, u32)],
+    /// Column l: the holomorphic differential P_l in the monomials. The integrand is
+    /// P_l / G_y itself, not each monomial apart: near a singular point the monomials'
+    /// integrals are large and only their adjoint combination is not.
+    basis: &'a DMatrix<C64>,
     steps: usize,
     nodes: usize,
 }
 
+impl Piece {
+    fn halves(&self) -> (Piece, Piece) {
+        match *self {
+            Piece::Segment(a, b) => {
+                let m = (a + b) * 0.5;
+                (Piece::Segment(a, m), Piece::Segment(m, b))
+            }
+            Piece::Arc(c, r, p0, p1) => {
+                let pm = 0.5 * (p0 + p1);
+                (Piece::Arc(c, r, p0, pm), Piece::Arc(c, r, pm, p1))
+            }
+        }
+    }
+}
+
+/// Pieces are halved until the two rules agree to this (relative to the piece's integral),
+/// at most `MAX_HALVINGS` times, and only while halving still helps (near a singular point
+/// rounding in the adjoint combination sets a floor no rule gets below).
+const PIECE_TOL: f64 = 1e-13;
+const MAX_HALVINGS: usize = 6;
+
 impl Walk<'_> {
-    /// Integrals over `pieces` of every monomial for every sheet, continuing `ys`; returns
-    /// the integrals [sheet][monomial], the error estimate and the roots at the end.
+    /// Integrals over `pieces` of every differential for every sheet, continuing `ys`;
+    /// returns the integrals [sheet][differential], the error estimate and the end roots.
     fn integrate(&mut self, pieces: &[Piece], ys: &[C64]) -> Result<(Vec<Vec<C64>>, f64, Vec<C64>), PeriodError> {
-        let d = ys.len();
-        let k = self.monomials.len();
-        let mut total = vec![vec![C64::new(0.0, 0.0); k]; d];
+        let (d, g) = (ys.len(), self.basis.ncols());
+        let mut total = vec![vec![C64::new(0.0, 0.0); g]; d];
         let mut err = 0.0f64;
         let mut cur = ys.to_vec();
-        let (lo, hi) = (
-            super::quad::rule(super::quad::Weight::symmetric(0, 1), RULES.0),
-            super::quad::rule(super::quad::Weight::symmetric(0, 1), RULES.1),
-        );
         for piece in pieces {
-            // Both rules' nodes in order along the piece, tagged with their weights.
-            let mut nodes: Vec<(f64, f64, bool)> =
-                lo.nodes.iter().zip(&lo.weights).map(|(&t, &w)| (t, w, false)).collect();
-            nodes.extend(hi.nodes.iter().zip(&hi.weights).map(|(&t, &w)| (t, w, true)));
-            nodes.sort_by(|a, b| a.0.total_cmp(&b.0));
-            let (mut x, _) = piece.at(-1.0);
-            let mut sums = [vec![vec![C64::new(0.0, 0.0); k]; d], vec![vec![C64::new(0.0, 0.0); k]; d]];
-            for (t, w, big) in nodes {
-                let (xn, dxdt) = piece.at(t);
-                cur = track::continue_to(self.g, x, &cur, xn, &mut self.steps).map_err(PeriodError::Accuracy)?;
-                x = xn;
-                self.nodes += 1;
-                for (s, &y) in cur.iter().enumerate() {
-                    let (_, _, gy) = self.g.eval(x, y);
-                    let base = dxdt * w / gy;
-                    for (m, &(a, b)) in self.monomials.iter().enumerate() {
-                        sums[big as usize][s][m] += base * x.powi(a as i32) * y.powi(b as i32);
-                    }
+            let (sums, e, end) = self.piece(piece, &cur, 0, f64::INFINITY)?;
+            for s in 0..d {
+                for l in 0..g {
+                    total[s][l] += sums[s][l];
                 }
             }
-            let (xe, _) = piece.at(1.0);
-            cur = track::continue_to(self.g, x, &cur, xe, &mut self.steps).map_err(PeriodError::Accuracy)?;
-            for s in 0..d {
-                for m in 0..k {
-                    err = err.max((sums[1][s][m] - sums[0][s][m]).norm());
-                    total[s][m] += sums[1][s][m];
+            err += e;
+            cur = end;
+        }
+        Ok((total, err, cur))
+    }
+
+    /// One piece by both rules, halved while they disagree.
+    fn piece(
+        &mut self,
+        piece: &Piece,
+        ys: &[C64],
+        depth: usize,
+        parent: f64,
+    ) -> Result<(Vec<Vec<C64>>, f64, Vec<C64>), PeriodError> {
+        let (d, g) = (ys.len(), self.basis.ncols());
+        let weight = super::quad::Weight::symmetric(0, 1);
+        let (lo, hi) = (super::quad::rule(weight, RULES.0), super::quad::rule(weight, RULES.1));
+        // Both rules' nodes in order along the piece, tagged with their weights.
+        let mut nodes: Vec<(f64, f64, bool)> = lo.nodes.iter().zip(&lo.weights).map(|(&t, &w)| (t, w, false)).collect();
+        nodes.extend(hi.nodes.iter().zip(&hi.weights).map(|(&t, &w)| (t, w, true)));
+        nodes.sort_by(|a, b| a.0.total_cmp(&b.0));
+        let (mut x, _) = piece.at(-1.0);
+        let mut cur = ys.to_vec();
+        let mut sums = [vec![vec![C64::new(0.0, 0.0); g]; d], vec![vec![C64::new(0.0, 0.0); g]; d]];
+        let mut mono = vec![C64::new(0.0, 0.0); self.monomials.len()];
+        for (t, w, big) in nodes {
+            let (xn, dxdt) = piece.at(t);
+            cur = track::continue_to(self.g, x, &cur, xn, &mut self.steps).map_err(PeriodError::Accuracy)?;
+            x = xn;
+            self.nodes += 1;
+            for (s, &y) in cur.iter().enumerate() {
+                let (_, _, gy) = self.g.eval(x, y);
+                let base = dxdt * w / gy;
+                for (m, &(a, b)) in self.monomials.iter().enumerate() {
+                    mono[m] = x.powi(a as i32) * y.powi(b as i32);
+                }
+                for l in 0..g {
+                    let p: C64 = (0..mono.len()).map(|m| self.basis[(m, l)] * mono[m]).sum();
+                    sums[big as usize][s][l] += base * p;
                 }
             }
         }
-        Ok((total, err * pieces.len() as f64, cur))
+        let (xe, _) = piece.at(1.0);
+        cur = track::continue_to(self.g, x, &cur, xe, &mut self.steps).map_err(PeriodError::Accuracy)?;
+        let mut diff = 0.0f64;
+        let mut size = 0.0f64;
+        for s in 0..d {
+            for l in 0..g {
+                diff = diff.max((sums[1][s][l] - sums[0][s][l]).norm());
+                size = size.max(sums[1][s][l].norm());
+            }
+        }
+        // Halving a piece divides the rules' error by about 2^32 while it is quadrature
+        // error; when the two halves together did not improve on a quarter of the parent's
+        // difference, this is the rounding floor.
+        let helps = diff < 0.25 * parent;
+        if diff > PIECE_TOL * (1.0 + size) && depth < MAX_HALVINGS && helps {
+            let (a, b) = piece.halves();
+            let (s1, e1, mid) = self.piece(&a, ys, depth + 1, diff)?;
+            let (s2, e2, end) = self.piece(&b, &mid, depth + 1, diff)?;
+            let sum = (0..d).map(|s| (0..g).map(|l| s1[s][l] + s2[s][l]).collect()).collect();
+            return Ok((sum, e1 + e2, end));
+        }
+        let [_, big] = sums;
+        Ok((big, diff, cur))
     }
 }
 
@@ -298,13 +410,6 @@ pub fn periods(poly: &Poly, projective: bool, facts: &CurveFacts, genus: i64) ->
     if genus < 1 {
         return Err(PeriodError::NoMatrix(format!("the curve has genus {genus}")));
     }
-    let singular_ok = facts.rational.iter().all(|p| p.local.as_ref().is_ok_and(|l| l.tree.len() <= 1))
-        && facts.irrational.iter().all(|p| matches!(&p.local, Some(Ok(l)) if l.tree.len() <= 1));
-    if !singular_ok {
-        return Err(PeriodError::Unsupported(
-            "singular points that one blow-up does not resolve (tacnodes and the like) need adjoint conditions at infinitely near points, which are not built yet".into(),
-        ));
-    }
     let (change, g) = general_position(&f, d).ok_or_else(|| {
         PeriodError::Unsupported("no small change of coordinates puts the curve in general position".into())
     })?;
@@ -315,16 +420,19 @@ pub fn periods(poly: &Poly, projective: bool, facts: &CurveFacts, genus: i64) ->
         return Err(PeriodError::NoMatrix("the equation has a repeated factor".into()));
     }
     let critical: Vec<C64> = refined_roots(&disc.squarefree()).into_iter().map(|(z, _)| z).collect();
-    let multiplicities: Vec<u32> = facts
-        .rational
-        .iter()
-        .filter_map(|p| p.local.as_ref().ok().map(|l| l.multiplicity))
-        .chain(facts.irrational.iter().filter_map(|p| match &p.local {
-            Some(Ok(l)) => Some(l.multiplicity),
-            _ => None,
-        }))
-        .collect();
-    let singular = singular_points(&plane, &critical, &multiplicities);
+    // How many singular points of each multiplicity the exact algebra reports.
+    let mut wanted = std::collections::BTreeMap::new();
+    for p in &facts.rational {
+        if let Ok(l) = &p.local {
+            *wanted.entry(l.multiplicity).or_insert(0) += 1;
+        }
+    }
+    for p in &facts.irrational {
+        if let Some(Ok(l)) = &p.local {
+            *wanted.entry(l.multiplicity).or_insert(0) += p.count;
+        }
+    }
+    let singular = singular_points(&plane, &critical, &wanted);
     if singular.len() != facts.singular_count() {
         return Err(PeriodError::Accuracy(format!(
             "{} singular points found numerically, the exact algebra has {}",
@@ -332,21 +440,22 @@ pub fn periods(poly: &Poly, projective: bool, facts: &CurveFacts, genus: i64) ->
             facts.singular_count()
         )));
     }
-    let numeric_delta: i64 = singular.iter().map(|&(_, _, m)| (m * (m - 1) / 2) as i64).sum();
+    let mut numeric_delta = 0u64;
+    let diffs = adjoint::holomorphic(&plane, &singular, genus as usize, &mut numeric_delta);
     let arithmetic = ((d - 1) * (d - 2) / 2) as i64;
-    if arithmetic - numeric_delta != genus {
+    if arithmetic - numeric_delta as i64 != genus {
         return Err(PeriodError::Accuracy(format!(
-            "the singular points found numerically ({}) give genus {}, the exact algebra {genus}",
+            "the singular points resolved numerically ({}) give genus {}, the exact algebra {genus}",
             singular.len(),
-            arithmetic - numeric_delta
+            arithmetic - numeric_delta as i64
         )));
     }
-    let diffs = adjoint::holomorphic(&plane, &singular, genus as usize).map_err(PeriodError::Accuracy)?;
+    let diffs = diffs.map_err(PeriodError::Accuracy)?;
 
     let b0 = base_point(&critical)?;
     let fibre0 = plane::roots(&plane.fibre(b0));
     let n = critical.len();
-    let mut walk = Walk { g: &plane, monomials: &diffs.monomials, steps: 0, nodes: 0 };
+    let mut walk = Walk { g: &plane, monomials: &diffs.monomials, basis: &diffs.basis, steps: 0, nodes: 0 };
     let mut sigma = vec![];
     // loop_periods[i][s][monomial], and each loop's error estimate.
     let mut loop_periods = vec![];
@@ -382,7 +491,7 @@ pub fn periods(poly: &Poly, projective: bool, facts: &CurveFacts, genus: i64) ->
         let (circ, circ_err, back) = walk.integrate(&arcs, &at_p)?;
         let perm = permutation(&at_p, &back)?;
         let per: Vec<Vec<C64>> = (0..plane.d)
-            .map(|s| (0..diffs.monomials.len()).map(|m| seg[s][m] + circ[s][m] - seg[perm[s]][m]).collect())
+            .map(|s| (0..genus as usize).map(|l| seg[s][l] + circ[s][l] - seg[perm[s]][l]).collect())
             .collect();
         loop_periods.push(per);
         loop_errors.push(2.0 * seg_err + circ_err);
@@ -426,28 +535,25 @@ pub fn periods(poly: &Poly, projective: bool, facts: &CurveFacts, genus: i64) ->
             basis.a.len()
         )));
     }
-    // Periods of the monomial differentials over each fundamental cycle.
-    let km = diffs.monomials.len();
+    // Periods of the differentials over each fundamental cycle.
+    let gg = genus as usize;
     let cycle_periods: Vec<(Vec<C64>, f64)> = cycles
         .iter()
         .map(|c| {
-            let mut v = vec![C64::new(0.0, 0.0); km];
+            let mut v = vec![C64::new(0.0, 0.0); gg];
             let mut e = 0.0;
             for st in c {
                 let sign = if st.forward { 1.0 } else { -1.0 };
-                for m in 0..km {
-                    v[m] += loop_periods[st.lp][st.sheet][m] * sign;
+                for l in 0..gg {
+                    v[l] += loop_periods[st.lp][st.sheet][l] * sign;
                 }
                 e += loop_errors[st.lp];
             }
             (v, e)
         })
         .collect();
-    let nb = &diffs.basis;
-    let column_sum = (0..genus as usize).map(|l| (0..km).map(|m| nb[(m, l)].norm()).sum::<f64>()).fold(0.0, f64::max);
     let assemble = |vecs: &[Vec<i64>]| -> (DMatrix<C64>, f64) {
-        let g = genus as usize;
-        let mut out = DMatrix::<C64>::zeros(g, g);
+        let mut out = DMatrix::<C64>::zeros(gg, gg);
         let mut err = 0.0f64;
         for (j, coeffs) in vecs.iter().enumerate() {
             let mut e = 0.0;
@@ -456,12 +562,11 @@ pub fn periods(poly: &Poly, projective: bool, facts: &CurveFacts, genus: i64) ->
                     continue;
                 }
                 e += (w as f64).abs() * cycle_periods[c].1;
-                for l in 0..g {
-                    let val: C64 = (0..km).map(|m| nb[(m, l)] * cycle_periods[c].0[m]).sum();
-                    out[(l, j)] += val * w as f64;
+                for l in 0..gg {
+                    out[(l, j)] += cycle_periods[c].0[l] * w as f64;
                 }
             }
-            err = err.max(e * column_sum);
+            err = err.max(e);
         }
         (out, err)
     };
