@@ -43,6 +43,29 @@ pub fn atomic_write(target: &Path, bytes: &[u8]) -> Result<(), String> {
     })();
     if result.is_err() {
         let _ = std::fs::remove_file(&tmp);
+    } else {
+        remove_stale(dir, name);
     }
     result.map_err(|e| format!("cannot write {}: {e}", target.display()))
+}
+
+/// Removes temporary files of this output left by runs that were killed mid-write: those
+/// whose process is gone (on Linux, no /proc entry), elsewhere those over an hour old. A
+/// concurrent run's file in progress is left alone.
+fn remove_stale(dir: &Path, name: &str) {
+    let prefix = format!(".{name}.kelp-");
+    let Ok(entries) = std::fs::read_dir(dir) else { return };
+    for e in entries.flatten() {
+        let file = e.file_name();
+        let Some(f) = file.to_str() else { continue };
+        let Some(pid) = f.strip_prefix(&prefix).and_then(|r| r.strip_suffix(".tmp")) else { continue };
+        let gone = if cfg!(target_os = "linux") {
+            pid.parse::<u32>().is_ok_and(|p| !Path::new(&format!("/proc/{p}")).exists())
+        } else {
+            e.metadata().and_then(|m| m.modified()).ok().and_then(|t| t.elapsed().ok()).is_some_and(|a| a.as_secs() > 3600)
+        };
+        if gone {
+            let _ = std::fs::remove_file(e.path());
+        }
+    }
 }
