@@ -195,6 +195,84 @@ pub fn outcome(path: &Path, mode: &Mode, verbose: bool, color: bool) -> Result<O
     Ok(Outcome { rendered, summary, values, written, json, sarif, junit, any_error })
 }
 
+/// A stable 128-bit digest (two FNV-1a 64 passes with different offset bases): the cache key.
+fn digest(parts: &[&[u8]]) -> String {
+    let mut out = String::new();
+    for basis in [0xcbf2_9ce4_8422_2325u64, 0x6c62_272e_07bb_0142u64] {
+        let mut h = basis;
+        for p in parts {
+            // Length first, so ("ab", "c") and ("a", "bc") differ.
+            for b in (p.len() as u64).to_le_bytes().iter().chain(p.iter()) {
+                h ^= *b as u64;
+                h = h.wrapping_mul(0x0000_0100_0000_01b3);
+            }
+        }
+        out.push_str(&format!("{h:016x}"));
+    }
+    out
+}
+
+/// The running binary's identity: its size and modification time (so a rebuilt kelp, even
+/// of the same version number, never reads another build's entries).
+fn build_id() -> String {
+    std::env::current_exe()
+        .and_then(std::fs::metadata)
+        .map(|m| format!("{}-{:?}", m.len(), m.modified().ok()))
+        .unwrap_or_default()
+}
+
+/// `outcome` through a cache folder: the key covers the tool version and build, the flags
+/// that change the report, the path shown and the file's bytes, so an entry is reused only
+/// for an identical check. Entries are written atomically (temporary file, then rename),
+/// so concurrent runs at worst both compute the same entry.
+pub fn cached_outcome(path: &Path, verbose: bool, color: bool, cache: Option<&Path>) -> Result<Outcome, String> {
+    let Some(dir) = cache else { return outcome(path, &Mode::Check, verbose, color) };
+    let bytes = std::fs::read(path).map_err(|e| format!("kelp: cannot read {}: {e}", path.display()))?;
+    let shown = path.display().to_string();
+    let flags = format!("verbose={verbose} color={color}");
+    let key = digest(&[
+        b"kelp check cache 1",
+        env!("CARGO_PKG_VERSION").as_bytes(),
+        build_id().as_bytes(),
+        flags.as_bytes(),
+        shown.as_bytes(),
+        &bytes,
+    ]);
+    let entry = dir.join(format!("{key}.json"));
+    if let Some(o) =
+        std::fs::read(&entry).ok().and_then(|b| serde_json::from_slice::<J>(&b).ok()).and_then(|j| from_json(&j))
+    {
+        return Ok(o);
+    }
+    let o = outcome(path, &Mode::Check, verbose, color)?;
+    std::fs::create_dir_all(dir).map_err(|e| format!("kelp: cannot create the cache folder {}: {e}", dir.display()))?;
+    let text = serde_json::to_vec(&to_json(&o)).expect("serialisable");
+    kelp_evaluator::output::write::atomic_write(&entry, &text)?;
+    Ok(o)
+}
+
+fn to_json(o: &Outcome) -> J {
+    json!({
+        "rendered": o.rendered, "summary": o.summary, "values": o.values, "written": o.written,
+        "json": o.json, "sarif": o.sarif, "junit": o.junit, "any_error": o.any_error,
+    })
+}
+
+fn from_json(j: &J) -> Option<Outcome> {
+    let strings =
+        |k: &str| -> Option<Vec<String>> { j[k].as_array()?.iter().map(|v| v.as_str().map(str::to_string)).collect() };
+    Some(Outcome {
+        rendered: j["rendered"].as_str()?.to_string(),
+        summary: j["summary"].as_str()?.to_string(),
+        values: strings("values")?,
+        written: strings("written")?,
+        json: j["json"].clone(),
+        sarif: j["sarif"].as_array()?.clone(),
+        junit: j["junit"].as_str()?.to_string(),
+        any_error: j["any_error"].as_bool()?,
+    })
+}
+
 impl Outcome {
     /// The human report: diagnostics to `err`, values, the summary and written files to `out`.
     pub fn write_human(&self, out: &mut dyn std::io::Write, err: &mut dyn std::io::Write) -> std::io::Result<()> {

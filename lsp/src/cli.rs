@@ -46,6 +46,10 @@ enum Command {
         /// Files evaluated at once (default: the machine's cores); reports keep file order.
         #[arg(long, short)]
         jobs: Option<usize>,
+        /// Reuse reports of unchanged files from this folder (keyed by the file's bytes,
+        /// its path and this build of kelp), and store new ones there.
+        #[arg(long, value_name = "DIR")]
+        cache: Option<PathBuf>,
     },
     /// Evaluate like `check`, then write samples and plots.
     Run {
@@ -97,8 +101,8 @@ pub fn run(args: &[String], out: &mut dyn Write, err: &mut dyn Write, color: boo
     };
     let mut io = Io { out, err, color };
     let status = match cli.command {
-        Command::Check { files, format, verbose, shard, jobs } => {
-            io.check_collection(&files, format, verbose, shard, jobs)
+        Command::Check { files, format, verbose, shard, jobs, cache } => {
+            io.check_collection(&files, format, verbose, shard, jobs, cache)
         }
         Command::Run { format: Format::Sarif | Format::Junit, .. } => {
             Err("kelp: --format sarif and junit report `kelp check` runs; use human or json with `run`".to_string())
@@ -215,6 +219,7 @@ impl Io<'_> {
         verbose: bool,
         shard: Option<String>,
         jobs: Option<usize>,
+        cache: Option<PathBuf>,
     ) -> Status {
         use crate::batch;
         use rayon::prelude::*;
@@ -225,7 +230,7 @@ impl Io<'_> {
         }
         let color = self.color && format == Format::Human;
         let work = || -> Vec<Result<batch::Outcome, String>> {
-            files.par_iter().map(|f| batch::outcome(f, &Mode::Check, verbose, color)).collect()
+            files.par_iter().map(|f| batch::cached_outcome(f, verbose, color, cache.as_deref())).collect()
         };
         let mut pool = rayon::ThreadPoolBuilder::new().stack_size(crate::STACK_BYTES);
         if let Some(n) = jobs {

@@ -51,7 +51,11 @@ fn an_interrupted_run_leaves_the_old_or_the_new_output() {
         let _ = child.kill();
         let _ = child.wait();
         let now = std::fs::read(&target).unwrap();
-        assert!(now == old || now == new, "killed after {delay_ms} ms: neither the old nor the new file ({} bytes)", now.len());
+        assert!(
+            now == old || now == new,
+            "killed after {delay_ms} ms: neither the old nor the new file ({} bytes)",
+            now.len()
+        );
     }
     assert!(kills >= 3, "the runs ended before they could be interrupted ({kills} kills)");
     // A complete run gives the new output and leaves no temporary files behind.

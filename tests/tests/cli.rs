@@ -192,3 +192,30 @@ fn collections_shards_and_report_formats() {
     assert!(junit.contains("name=\"line 2: expect a == 3\"><failure"), "{junit}");
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+/// `--cache DIR` gives the same reports as a fresh check, keeps one entry per checked file,
+/// and an edited file gets a new entry (its report reflects the edit).
+#[test]
+fn check_cache_reuses_only_identical_checks() {
+    let dir = std::env::temp_dir().join(format!("kelp-cache-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    let a = dir.join("shoal.kelp");
+    let b = dir.join("spit.kelp");
+    std::fs::write(&a, "# invented shoal\nlet m = [[1.1i, 0.3], [0.3, 0.9i]]\nexpect is_riemann(m)\n").unwrap();
+    std::fs::write(&b, "# invented spit\nexpect 1 + 1 == 2\n").unwrap();
+    let cache = dir.join("cache");
+    let (a_s, b_s, c_s) = (a.to_str().unwrap(), b.to_str().unwrap(), cache.to_str().unwrap());
+    let fresh = kelp(&["check", "--format", "json", a_s, b_s]);
+    let first = kelp(&["check", "--format", "json", "--cache", c_s, a_s, b_s]);
+    let second = kelp(&["check", "--format", "json", "--cache", c_s, a_s, b_s]);
+    assert_eq!(fresh, first);
+    assert_eq!(first, second);
+    let entries = || std::fs::read_dir(&cache).unwrap().count();
+    assert_eq!(entries(), 2);
+    std::fs::write(&b, "# invented spit\nexpect 1 + 1 == 3\n").unwrap();
+    let edited = kelp(&["check", "--cache", c_s, b_s]);
+    assert_eq!(edited.0, 1, "the edited claim fails: {edited:?}");
+    assert_eq!(entries(), 3);
+    let _ = std::fs::remove_dir_all(&dir);
+}

@@ -62,7 +62,11 @@ fn remove_stale(dir: &Path, name: &str) {
         let gone = if cfg!(target_os = "linux") {
             pid.parse::<u32>().is_ok_and(|p| !Path::new(&format!("/proc/{p}")).exists())
         } else {
-            e.metadata().and_then(|m| m.modified()).ok().and_then(|t| t.elapsed().ok()).is_some_and(|a| a.as_secs() > 3600)
+            e.metadata()
+                .and_then(|m| m.modified())
+                .ok()
+                .and_then(|t| t.elapsed().ok())
+                .is_some_and(|a| a.as_secs() > 3600)
         };
         if gone {
             let _ = std::fs::remove_file(e.path());
