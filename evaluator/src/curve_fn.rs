@@ -9,10 +9,6 @@ use crate::value::{CurveValue, SingularInfo, Value, Valued};
 use kelp_lang::{Code, Diagnostic, Span};
 use std::rc::Rc;
 
-/// Curves above this degree are refused by the exact algebra for now (resultant sizes
-/// grow like d^4).
-pub const MAX_ALGEBRA_DEGREE: u32 = 12;
-
 impl Evaluator<'_> {
     fn facts(&mut self, c: &CurveValue, span: Span) -> Result<std::sync::Arc<CurveFacts>, Fail> {
         let first_use = c.facts.get().is_none();
@@ -21,8 +17,10 @@ impl Evaluator<'_> {
                 Code::BudgetExceeded,
                 span,
                 format!(
-                    "`{}` has degree {}; singular points and genus are computed up to degree {MAX_ALGEBRA_DEGREE} for now",
-                    c.name, c.equation.degree
+                    "`{}` has degree {}; singular points and genus are computed up to degree {} (the `max_degree` setting, at most 24)",
+                    c.name,
+                    c.equation.degree,
+                    crate::limits::current().max_degree
                 ),
             ));
         };

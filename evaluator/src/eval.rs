@@ -66,7 +66,9 @@ pub(crate) fn fail(code: Code, span: Span, msg: impl Into<String>) -> Fail {
 
 pub fn evaluate(checked: &Checked, src: &str, mode: &Mode) -> Evaluation {
     let mut ev = Evaluator { checked, src, env: HashMap::new(), out: Evaluation::default() };
+    crate::limits::set(crate::limits::from_settings(&checked.settings));
     for &i in &checked.order {
+        crate::limits::start_statement();
         ev.statement(i, mode);
     }
     kelp_lang::diag::sort(&mut ev.out.diagnostics);
@@ -92,6 +94,18 @@ impl Evaluator<'_> {
 
     fn report(&mut self, f: Fail, span: Span, what: &str) {
         match f {
+            // Whatever a computation cut short by the clock said, the reason is the budget.
+            Fail::At(d) if crate::limits::expired() && d.code != Code::BudgetExceeded => {
+                let budget = crate::limits::current().time_budget;
+                self.out.diagnostics.push(
+                    Diagnostic::error(
+                        Code::BudgetExceeded,
+                        d.span,
+                        format!("{what} ran out of its time budget of {budget} s, so it has no value"),
+                    )
+                    .with_note("raise it with `set time_budget = SECONDS` or `--limit time_budget=SECONDS`"),
+                )
+            }
             Fail::At(d) => self.out.diagnostics.push(d),
             Fail::Dep(name) => self.out.diagnostics.push(Diagnostic::warning(
                 Code::DependsOnFailed,

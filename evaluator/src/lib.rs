@@ -6,6 +6,7 @@ pub mod algebra;
 pub mod curve_fn;
 pub mod eval;
 pub mod json;
+pub mod limits;
 pub mod linalg;
 mod memo;
 pub mod num;

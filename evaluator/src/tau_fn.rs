@@ -81,6 +81,7 @@ impl Evaluator<'_> {
             return self.general_matrix(c, reduce, span);
         };
         let accuracy = self.checked.settings.accuracy;
+        genus_limit(superelliptic_genus(shape.m, shape.f.degree().unwrap_or(0) as u32) as i64, span, &c.name)?;
         let p = c
             .periods
             .get_or_init(|| crate::periods::periods_memo(shape.m, &shape.f, accuracy))
@@ -115,7 +116,11 @@ impl Evaluator<'_> {
             fail(
                 Code::NotSupported,
                 span,
-                format!("`tau({})` is not supported yet above degree {}", c.name, crate::curve_fn::MAX_ALGEBRA_DEGREE),
+                format!(
+                    "`tau({})` needs the exact curve algebra, which runs up to degree {} (the `max_degree` setting)",
+                    c.name,
+                    crate::limits::current().max_degree
+                ),
             )
         })?;
         let genus = facts.genus().map_err(|e| match e {
@@ -131,6 +136,21 @@ impl Evaluator<'_> {
             .map_err(|e| period_fail(&e, span, &c.name))?;
         riemann_matrix((*p).clone(), reduce).map_err(|e| period_fail(&e, span, &c.name))
     }
+}
+
+/// Refuses a genus above the `max_genus` setting.
+fn genus_limit(genus: i64, span: Span, name: &str) -> Result<(), Fail> {
+    let max = crate::limits::current().max_genus;
+    if genus > max as i64 {
+        return Err(fail(
+            Code::BudgetExceeded,
+            span,
+            format!(
+                "`{name}` has genus {genus}; Riemann matrices are computed up to genus {max} (the `max_genus` setting)"
+            ),
+        ));
+    }
+    Ok(())
 }
 
 /// j(tau) of a 1 x 1 Riemann matrix.

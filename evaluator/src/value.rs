@@ -19,7 +19,7 @@ impl CurveValue {
     /// The curve's singular points and genus facts, computed on first use and kept;
     /// `None` above the degree the exact algebra accepts.
     pub fn facts(&self) -> Option<std::sync::Arc<crate::algebra::curve::CurveFacts>> {
-        if self.equation.degree > crate::curve_fn::MAX_ALGEBRA_DEGREE {
+        if self.equation.degree > crate::limits::current().max_degree {
             return None;
         }
         Some(

@@ -23,8 +23,6 @@ fn show_vector(v: &[C64]) -> String {
 
 /// Sample points per axis of a range written without `step`.
 pub const DEFAULT_SAMPLES: usize = 21;
-/// Largest number of sample points of one region.
-pub const MAX_POINTS: usize = 4_000_000;
 
 fn c2(c: C64) -> J {
     json!([c.re, c.im])
@@ -148,8 +146,13 @@ impl Evaluator<'_> {
                                 return Err(fail(Code::EvalFailed, ax.span, "a step must be positive"));
                             }
                             let n = ((b - a) / h + 1e-9).floor() + 1.0;
-                            if n > MAX_POINTS as f64 {
-                                return Err(fail(Code::BudgetExceeded, ax.span, format!("{n:.0} points on one axis")));
+                            let max_points = crate::limits::current().max_points;
+                            if n > max_points as f64 {
+                                return Err(fail(
+                                    Code::BudgetExceeded,
+                                    ax.span,
+                                    format!("{n:.0} points on one axis; the limit is {max_points} (the `max_points` setting)"),
+                                ));
                             }
                             n as usize
                         }
@@ -165,12 +168,13 @@ impl Evaluator<'_> {
                 _ => r.t = values,
             }
         }
-        if r.points() > MAX_POINTS {
+        let max_points = crate::limits::current().max_points;
+        if r.points() > max_points {
             return Err(fail(
                 Code::BudgetExceeded,
                 span,
                 format!(
-                    "the region has {:.3e} sample points; the limit is {MAX_POINTS}",
+                    "the region has {:.3e} sample points; the limit is {max_points} (the `max_points` setting)",
                     r.x.len() as f64 * r.y.len() as f64 * r.t.len() as f64
                 ),
             ));
@@ -500,6 +504,7 @@ impl Evaluator<'_> {
                 for &t in &region.t {
                     for &y in &region.y {
                         for &x in &region.x {
+                            crate::limits::check().map_err(|m| fail(Code::BudgetExceeded, span, m))?;
                             let p = w.at(x, y, t).map_err(|m| fail(Code::EvalFailed, span, m))?;
                             if p.kp.residual.norm() > worst {
                                 worst = p.kp.residual.norm();
@@ -552,6 +557,7 @@ impl Evaluator<'_> {
                 for &t in &region.t {
                     for &y in &region.y {
                         for &x in &region.x {
+                            crate::limits::check().map_err(|m| fail(Code::BudgetExceeded, span, m))?;
                             if let Err(m) = w.at(x, y, t) {
                                 return Ok(Valued { value: Value::Bool(false), error_bound: 0.0, reason: Some(m) });
                             }

@@ -262,8 +262,48 @@ pub fn lookup(name: &str) -> Option<&'static Builtin> {
     BUILTINS.iter().find(|b| b.name == name)
 }
 
-/// The settings `set` accepts, with their default and meaning.
-pub const SETTINGS: &[(&str, f64, &str)] = &[
-    ("tolerance", 1e-10, "default absolute tolerance of `==` between numerical values"),
-    ("accuracy", 1e-12, "requested absolute accuracy of numerical results (theta values, periods)"),
+/// A setting `set` accepts: its default, the range a value must lie in (open below,
+/// closed above), whether it counts something (a whole number), and its meaning.
+#[derive(Clone, Copy, Debug)]
+pub struct Setting {
+    pub name: &'static str,
+    pub default: f64,
+    pub min: f64,
+    pub max: f64,
+    pub whole: bool,
+    pub meaning: &'static str,
+}
+
+const fn setting(name: &'static str, default: f64, min: f64, max: f64, whole: bool, meaning: &'static str) -> Setting {
+    Setting { name, default, min, max, whole, meaning }
+}
+
+/// Every setting. The limits can also be given on the command line (`--limit NAME=VALUE`),
+/// which overrides the file.
+pub const SETTINGS: &[Setting] = &[
+    setting("tolerance", 1e-10, 0.0, 1.0, false, "default absolute tolerance of `==` between numerical values"),
+    setting(
+        "accuracy",
+        1e-12,
+        0.0,
+        1.0,
+        false,
+        "requested absolute accuracy of numerical results (theta values, periods)",
+    ),
+    setting("max_points", 4e6, 0.0, 4e7, true, "largest number of sample points of one region"),
+    setting("max_lattice_points", 2e7, 0.0, 2e8, true, "largest estimated number of lattice points of one theta value"),
+    setting(
+        "max_degree",
+        12.0,
+        0.0,
+        24.0,
+        true,
+        "largest curve degree the exact curve algebra and Riemann matrices take",
+    ),
+    setting("max_genus", 50.0, 0.0, 200.0, true, "largest genus of a Riemann matrix"),
+    setting("time_budget", 120.0, 0.0, 86400.0, false, "seconds one statement may take before it is stopped"),
 ];
+
+pub fn setting_named(name: &str) -> Option<&'static Setting> {
+    SETTINGS.iter().find(|s| s.name == name)
+}

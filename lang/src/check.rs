@@ -94,11 +94,39 @@ pub struct CurveEquation {
 pub struct Settings {
     pub tolerance: f64,
     pub accuracy: f64,
+    /// Every setting's value by name (defaults included).
+    pub values: std::collections::BTreeMap<&'static str, f64>,
+}
+
+impl Settings {
+    pub fn get(&self, name: &str) -> f64 {
+        self.values.get(name).copied().unwrap_or_else(|| builtins::setting_named(name).map_or(f64::NAN, |s| s.default))
+    }
+
+    /// Sets a value after checking it against the setting's range; the error says why not.
+    pub fn set(&mut self, name: &str, v: f64) -> Result<(), String> {
+        let s = builtins::setting_named(name).ok_or_else(|| format!("there is no setting `{name}`"))?;
+        if !(v > s.min && v <= s.max) || (s.whole && v.fract() != 0.0) {
+            let what = if s.whole { "a whole number" } else { "a number" };
+            return Err(format!("`{name}` ({}) takes {what} above {} and at most {}", s.meaning, s.min, s.max));
+        }
+        self.values.insert(s.name, v);
+        match name {
+            "tolerance" => self.tolerance = v,
+            "accuracy" => self.accuracy = v,
+            _ => {}
+        }
+        Ok(())
+    }
 }
 
 impl Default for Settings {
     fn default() -> Self {
-        Settings { tolerance: SETTINGS[0].1, accuracy: SETTINGS[1].1 }
+        Settings {
+            tolerance: SETTINGS[0].default,
+            accuracy: SETTINGS[1].default,
+            values: SETTINGS.iter().map(|s| (s.name, s.default)).collect(),
+        }
     }
 }
 
@@ -475,17 +503,17 @@ impl Checker {
     // ---- settings, claims, outputs ----
 
     fn check_setting(&mut self, name: &Ident, value: &Expr, seen: &mut HashMap<String, Span>) {
-        let Some(&(_, _, meaning)) = SETTINGS.iter().find(|s| s.0 == name.name) else {
+        if builtins::setting_named(&name.name).is_none() {
             let d = self.error(Code::UnknownSetting, name.span, format!("there is no setting `{}`", name.name));
-            match closest(&name.name, SETTINGS.iter().map(|s| s.0)) {
+            match closest(&name.name, SETTINGS.iter().map(|s| s.name)) {
                 Some(s) => d.notes.push(format!("did you mean `{s}`?")),
                 None => d.notes.push(format!(
                     "the settings are {}",
-                    SETTINGS.iter().map(|s| format!("`{}`", s.0)).collect::<Vec<_>>().join(", ")
+                    SETTINGS.iter().map(|s| format!("`{}`", s.name)).collect::<Vec<_>>().join(", ")
                 )),
             }
             return;
-        };
+        }
         if let Some(prev) = seen.get(&name.name) {
             let d = Diagnostic::error(Code::DuplicateSetting, name.span, format!("`{}` is already set", name.name))
                 .with_label(*prev, "first set here");
@@ -493,18 +521,12 @@ impl Checker {
             return;
         }
         seen.insert(name.name.clone(), name.span);
-        match const_real(value) {
-            Some(v) if v > 0.0 && v < 1.0 => match name.name.as_str() {
-                "tolerance" => self.settings.tolerance = v,
-                _ => self.settings.accuracy = v,
-            },
-            _ => {
-                self.error(
-                    Code::BadSettingValue,
-                    value.span,
-                    format!("`{}` ({meaning}) takes a number between 0 and 1, such as 1e-10", name.name),
-                );
-            }
+        let result = match const_real(value) {
+            Some(v) => self.settings.set(&name.name, v),
+            None => self.settings.set(&name.name, f64::NAN),
+        };
+        if let Err(m) = result {
+            self.error(Code::BadSettingValue, value.span, m);
         }
     }
 

@@ -89,11 +89,34 @@ fn xml(s: &str) -> String {
     s.replace('&', "&amp;").replace('<', "&lt;").replace('>', "&gt;").replace('"', "&quot;")
 }
 
+/// How files are evaluated and reported.
+#[derive(Clone, Debug, Default)]
+pub struct Options {
+    pub verbose: bool,
+    pub color: bool,
+    /// `--limit NAME=VALUE` overrides of the file's settings.
+    pub limits: Vec<(String, f64)>,
+}
+
+/// `NAME=VALUE` for `--limit`: a setting that exists and a value in its range.
+pub fn parse_limit(s: &str) -> Result<(String, f64), String> {
+    let (name, value) = s.split_once('=').ok_or_else(|| format!("`{s}`: write a limit as NAME=VALUE"))?;
+    let v: f64 = value.trim().parse().map_err(|_| format!("`{value}` is not a number"))?;
+    let mut probe = kelp_lang::check::Settings::default();
+    probe.set(name.trim(), v)?;
+    Ok((name.trim().to_string(), v))
+}
+
 /// Evaluates one file into an outcome.
-pub fn outcome(path: &Path, mode: &Mode, verbose: bool, color: bool) -> Result<Outcome, String> {
+pub fn outcome(path: &Path, mode: &Mode, opts: &Options) -> Result<Outcome, String> {
+    let (verbose, color) = (opts.verbose, opts.color);
     let shown = path.display().to_string();
     let (src, utf8) = crate::cli::read_source(path)?;
-    let checked = check(&src);
+    let mut checked = check(&src);
+    // Command-line limits override the file's (they were validated when parsed).
+    for (name, v) in &opts.limits {
+        checked.settings.set(name, *v)?;
+    }
     let eval = evaluate(&checked, &src, mode);
     let mut diags: Vec<Diagnostic> =
         utf8.into_iter().chain(checked.diagnostics.iter().cloned()).chain(eval.diagnostics.iter().cloned()).collect();
@@ -225,11 +248,11 @@ fn build_id() -> String {
 /// that change the report, the path shown and the file's bytes, so an entry is reused only
 /// for an identical check. Entries are written atomically (temporary file, then rename),
 /// so concurrent runs at worst both compute the same entry.
-pub fn cached_outcome(path: &Path, verbose: bool, color: bool, cache: Option<&Path>) -> Result<Outcome, String> {
-    let Some(dir) = cache else { return outcome(path, &Mode::Check, verbose, color) };
+pub fn cached_outcome(path: &Path, opts: &Options, cache: Option<&Path>) -> Result<Outcome, String> {
+    let Some(dir) = cache else { return outcome(path, &Mode::Check, opts) };
     let bytes = std::fs::read(path).map_err(|e| format!("kelp: cannot read {}: {e}", path.display()))?;
     let shown = path.display().to_string();
-    let flags = format!("verbose={verbose} color={color}");
+    let flags = format!("verbose={} color={} limits={:?}", opts.verbose, opts.color, opts.limits);
     let key = digest(&[
         b"kelp check cache 1",
         env!("CARGO_PKG_VERSION").as_bytes(),
@@ -244,7 +267,7 @@ pub fn cached_outcome(path: &Path, verbose: bool, color: bool, cache: Option<&Pa
     {
         return Ok(o);
     }
-    let o = outcome(path, &Mode::Check, verbose, color)?;
+    let o = outcome(path, &Mode::Check, opts)?;
     std::fs::create_dir_all(dir).map_err(|e| format!("kelp: cannot create the cache folder {}: {e}", dir.display()))?;
     let text = serde_json::to_vec(&to_json(&o)).expect("serialisable");
     kelp_evaluator::output::write::atomic_write(&entry, &text)?;

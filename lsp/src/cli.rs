@@ -50,6 +50,10 @@ enum Command {
         /// its path and this build of kelp), and store new ones there.
         #[arg(long, value_name = "DIR")]
         cache: Option<PathBuf>,
+        /// Override a limit of every file: max_points, max_lattice_points, max_degree,
+        /// max_genus or time_budget (seconds per statement). Repeatable.
+        #[arg(long = "limit", value_name = "NAME=VALUE", value_parser = crate::batch::parse_limit)]
+        limits: Vec<(String, f64)>,
     },
     /// Evaluate like `check`, then write samples and plots.
     Run {
@@ -58,6 +62,9 @@ enum Command {
         format: Format,
         #[arg(long, short)]
         verbose: bool,
+        /// Override a limit of the file (as for `check`). Repeatable.
+        #[arg(long = "limit", value_name = "NAME=VALUE", value_parser = crate::batch::parse_limit)]
+        limits: Vec<(String, f64)>,
     },
     /// Rewrite files in the canonical layout.
     Fmt {
@@ -101,16 +108,18 @@ pub fn run(args: &[String], out: &mut dyn Write, err: &mut dyn Write, color: boo
     };
     let mut io = Io { out, err, color };
     let status = match cli.command {
-        Command::Check { files, format, verbose, shard, jobs, cache } => {
-            io.check_collection(&files, format, verbose, shard, jobs, cache)
+        Command::Check { files, format, verbose, shard, jobs, cache, limits } => {
+            let opts = crate::batch::Options { verbose, color: io.color && format == Format::Human, limits };
+            io.check_collection(&files, format, &opts, shard, jobs, cache)
         }
         Command::Run { format: Format::Sarif | Format::Junit, .. } => {
             Err("kelp: --format sarif and junit report `kelp check` runs; use human or json with `run`".to_string())
         }
-        Command::Run { file, format, verbose } => {
+        Command::Run { file, format, verbose, limits } => {
             let base = file.parent().map(|p| if p.as_os_str().is_empty() { std::path::Path::new(".") } else { p });
             let base = base.unwrap_or(std::path::Path::new(".")).to_path_buf();
-            io.evaluate_files(&[file], format, verbose, Mode::Run { base, only: None })
+            let opts = crate::batch::Options { verbose, color: io.color && format == Format::Human, limits };
+            io.evaluate_files(&[file], format, &opts, Mode::Run { base, only: None })
         }
         Command::Fmt { files, check } => io.fmt(&files, check),
         Command::Lsp => Ok(crate::server::run()),
@@ -216,7 +225,7 @@ impl Io<'_> {
         &mut self,
         inputs: &[PathBuf],
         format: Format,
-        verbose: bool,
+        opts: &crate::batch::Options,
         shard: Option<String>,
         jobs: Option<usize>,
         cache: Option<PathBuf>,
@@ -228,9 +237,8 @@ impl Io<'_> {
             let sh = batch::parse_shard(&s)?;
             files.retain(|f| batch::in_shard(f, sh));
         }
-        let color = self.color && format == Format::Human;
         let work = || -> Vec<Result<batch::Outcome, String>> {
-            files.par_iter().map(|f| batch::cached_outcome(f, verbose, color, cache.as_deref())).collect()
+            files.par_iter().map(|f| batch::cached_outcome(f, opts, cache.as_deref())).collect()
         };
         let mut pool = rayon::ThreadPoolBuilder::new().stack_size(crate::STACK_BYTES);
         if let Some(n) = jobs {
@@ -265,13 +273,19 @@ impl Io<'_> {
     }
 
     /// `kelp run`: one file at a time, with a progress bar while sampling on a terminal.
-    fn evaluate_files(&mut self, files: &[PathBuf], format: Format, verbose: bool, mode: Mode) -> Status {
+    fn evaluate_files(
+        &mut self,
+        files: &[PathBuf],
+        format: Format,
+        opts: &crate::batch::Options,
+        mode: Mode,
+    ) -> Status {
         let mut reports = Vec::new();
         let mut any_error = false;
         let w = |e: std::io::Error| format!("kelp: cannot write output: {e}");
         for path in files {
             let bar = (self.color && matches!(mode, Mode::Run { .. })).then(ProgressBar::start);
-            let o = crate::batch::outcome(path, &mode, verbose, self.color && format == Format::Human)?;
+            let o = crate::batch::outcome(path, &mode, opts)?;
             drop(bar);
             any_error |= o.any_error;
             if format == Format::Json {

@@ -219,3 +219,20 @@ fn check_cache_reuses_only_identical_checks() {
     assert_eq!(entries(), 3);
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+/// `--limit NAME=VALUE` overrides the file's settings; an unknown or out-of-range limit is
+/// a usage error (exit 2).
+#[test]
+fn limits_from_the_command_line() {
+    let f = temp_file(
+        "limits.kelp",
+        "wave w = soliton(kappa = [-1, 1], a = [[1, 1]])\nexpect kp_residual(w, x in -1..1 step 0.01, t = 0) < 1e-10\n",
+    );
+    let p = f.to_str().unwrap();
+    assert_eq!(kelp(&["check", p]).0, 0);
+    let (code, out, err) = kelp(&["check", "--limit", "max_points=50", p]);
+    assert_eq!(code, 1, "{out}{err}");
+    assert!((out.clone() + &err).contains("K605"), "{out}{err}");
+    assert_eq!(kelp(&["check", "--limit", "max_pints=50", p]).0, 2);
+    assert_eq!(kelp(&["check", "--limit", "max_degree=99", p]).0, 2);
+}

@@ -275,3 +275,32 @@ fn editing_a_claim_reuses_the_riemann_matrix() {
         periods("curve memo_c: y^2 = x^5 - 7*x^3 + 2*x + 11\nlet t = tau(memo_c)\nexpect count(t) == 2  # edited\n");
     assert!(std::sync::Arc::ptr_eq(&a, &b), "the second evaluation recomputed the periods");
 }
+
+/// Limits set in the file: a region above `max_points`, a curve above `max_degree` and a
+/// genus above `max_genus` are refused with K605 naming the setting; a value outside a
+/// setting's range is K503.
+#[test]
+fn limits_are_configurable_by_set() {
+    let r = run("set max_points = 100\nwave w = soliton(kappa = [-1, 1], a = [[1, 1]])\n\
+                 expect kp_residual(w, x in -1..1 step 0.01, t = 0) < 1e-10\n");
+    assert_eq!(r.passed, vec![None]);
+    assert!(r.codes.contains(&Code::BudgetExceeded), "{:?}", r.messages);
+    assert!(r.messages.iter().any(|m| m.contains("max_points")), "{:?}", r.messages);
+    let r = run("set max_genus = 1\ncurve c: y^2 = x^5 - x + 1\nexpect is_riemann(tau(c))\n");
+    assert!(r.messages.iter().any(|m| m.contains("genus 2") && m.contains("max_genus")), "{:?}", r.messages);
+    let r = run("set max_degree = 3\ncurve c: x^4 + y^4 = 1\nexpect genus(c) == 3\n");
+    assert!(r.messages.iter().any(|m| m.contains("max_degree")), "{:?}", r.messages);
+    let c = kelp_lang::check("set max_degree = 30\nset time_budget = -1\n");
+    assert_eq!(c.diagnostics.iter().filter(|d| d.code == Code::BadSettingValue).count(), 2, "{:?}", c.diagnostics);
+}
+
+/// A statement that runs out of its time budget has no value, says so (K605), and the
+/// claims on it are not decided: neither passed nor failed.
+#[test]
+fn a_claim_out_of_time_is_reported_as_such() {
+    let r = run("set time_budget = 0.001\nwave w = soliton(kappa = [-3, -1, 0, 1, 2], a = [[1, 1, 0, 0, -1], [0, 1, 1, 1, 1]])\n\
+                 expect kp_residual(w, x in -10..10 step 0.01, y in -10..10 step 0.05, t = 0) < 1e-10\n");
+    assert_eq!(r.passed, vec![None]);
+    assert!(r.codes.contains(&Code::BudgetExceeded), "{:?}", r.messages);
+    assert!(r.messages.iter().any(|m| m.contains("time budget")), "{:?}", r.messages);
+}

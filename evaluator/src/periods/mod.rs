@@ -39,9 +39,11 @@ pub fn general_memo(
 ) -> Result<Arc<Periods>, PeriodError> {
     type Key = (String, bool);
     static MEMO: OnceLock<Memo<Key, Result<Arc<Periods>, PeriodError>>> = OnceLock::new();
-    MEMO.get_or_init(Memo::new).get_or((poly.to_string(), projective), || {
-        general::periods(poly, projective, facts, genus).map(|g| Arc::new(g.periods))
-    })
+    MEMO.get_or_init(Memo::new).get_or_keep(
+        (poly.to_string(), projective),
+        || general::periods(poly, projective, facts, genus).map(|g| Arc::new(g.periods)),
+        |_| !crate::limits::expired(),
+    )
 }
 
 #[derive(Clone, Debug)]

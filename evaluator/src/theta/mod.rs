@@ -26,9 +26,6 @@ use std::f64::consts::PI;
 /// Radius of the exponential tables built with a context (see `sum`).
 const TABLE_RADIUS: f64 = 9.0;
 
-/// Lattice points one evaluation may visit before it is refused.
-pub const MAX_POINTS: f64 = 2.0e7;
-
 #[derive(Clone, Debug, PartialEq)]
 pub enum ThetaError {
     NotSquare {
@@ -51,6 +48,7 @@ pub enum ThetaError {
     },
     TooManyPoints {
         estimate: f64,
+        limit: f64,
     },
 }
 
@@ -70,9 +68,9 @@ impl std::fmt::Display for ThetaError {
             ThetaError::WrongLength { what, expected, found } => {
                 write!(f, "{what} has {found} entries; the genus is {expected}")
             }
-            ThetaError::TooManyPoints { estimate } => write!(
+            ThetaError::TooManyPoints { estimate, limit } => write!(
                 f,
-                "the requested accuracy needs about {estimate:.2e} lattice points (limit {MAX_POINTS:.0e}); \
+                "the requested accuracy needs about {estimate:.2e} lattice points (limit {limit:.0e}, the `max_lattice_points` setting); \
                  the imaginary part of the matrix is too small or the accuracy too fine"
             ),
         }
@@ -153,6 +151,9 @@ pub struct ThetaContext {
     taur: DMatrix<C64>,
     yred_inv_diag: Vec<f64>,
     tables: sum::Tables,
+    /// The lattice-point limit in force when the context was made (the `max_lattice_points`
+    /// setting; kept here because grid points are summed on worker threads).
+    max_points: f64,
 }
 
 impl ThetaContext {
@@ -217,6 +218,7 @@ impl ThetaContext {
         }
         let tables = sum::Tables::new(&taur, half);
         Ok(ThetaContext {
+            max_points: crate::limits::current().max_lattice_points,
             g,
             tau,
             re,
@@ -377,8 +379,8 @@ impl ThetaContext {
         let radius = bound::radius(&tail_in, accuracy);
         let truncation = bound::tail(&tail_in, radius);
         let estimate = ellipsoid_points(radius, &self.gammas);
-        if estimate > MAX_POINTS {
-            return Err(ThetaError::TooManyPoints { estimate });
+        if estimate > self.max_points {
+            return Err(ThetaError::TooManyPoints { estimate, limit: self.max_points });
         }
         // Enumerate a hair wider than the bound's radius: the centre carries rounding.
         let r_enum = radius * (1.0 + 1e-9) + 1e-12;

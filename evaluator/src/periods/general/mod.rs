@@ -312,6 +312,7 @@ impl Walk<'_> {
         depth: usize,
         parent: f64,
     ) -> Result<(Vec<Vec<C64>>, f64, Vec<C64>), PeriodError> {
+        crate::limits::check().map_err(|m| PeriodError::Accuracy(m.into()))?;
         let (d, g) = (ys.len(), self.basis.ncols());
         let weight = super::quad::Weight::symmetric(0, 1);
         let (lo, hi) = (super::quad::rule(weight, RULES.0), super::quad::rule(weight, RULES.1));
