@@ -18,8 +18,9 @@ pub fn format(src: &str) -> String {
     let mut items: Vec<Item> = Vec::new();
     let mut comments = program.comments.iter().peekable();
     let mut last_end = 0usize;
-    let blank_between = |a: usize, b: usize| src[a..b].matches('\n').count() >= 2;
-    for stmt in &program.stmts {
+    let blank_between = |a: usize, b: usize| a < b && line_breaks(&src[a..b]) >= 2;
+    for (k, stmt) in program.stmts.iter().enumerate() {
+        let next_start = program.stmts.get(k + 1).map_or(src.len(), |n| n.span.start);
         // Comments before the statement, each on its own line.
         while let Some(c) = comments.next_if(|c| c.span.start < stmt.span.start) {
             if !items.is_empty() && blank_between(last_end, c.span.start) {
@@ -35,15 +36,20 @@ pub fn format(src: &str) -> String {
         let code = if matches!(stmt.kind, StmtKind::Error) || inner_comment {
             // Kept verbatim, with the comments it contains.
             while comments.next_if(|c| c.span.start < stmt.span.end).is_some() {}
-            src[stmt.span.range()].trim_end().to_string()
+            src[stmt.span.range()].trim_end_matches(lexer_space).to_string()
         } else {
             stmt_text(stmt)
         };
         last_end = stmt.span.end;
-        let trailing = comments.next_if(|c| !src[stmt.span.end..c.span.start].contains('\n')).map(|c| {
-            last_end = c.span.end;
-            c.text.trim_end().to_string()
-        });
+        let trailing = comments
+            .next_if(|c| {
+                (stmt.span.end..next_start).contains(&c.span.start)
+                    && line_breaks(&src[stmt.span.end..c.span.start]) == 0
+            })
+            .map(|c| {
+                last_end = c.span.end;
+                c.text.trim_end().to_string()
+            });
         items.push(Item::Line { code, trailing });
     }
     for c in comments {
@@ -54,6 +60,18 @@ pub fn format(src: &str) -> String {
         last_end = c.span.end;
     }
     render(&items)
+}
+
+/// Line breaks as the lexer counts them: `\n`, `\r\n` and a lone `\r`.
+fn line_breaks(s: &str) -> usize {
+    s.matches('\n').count() + s.matches('\r').count() - s.matches("\r\n").count()
+}
+
+/// What the lexer skips or ends a line with: only this may be trimmed from text kept
+/// verbatim (trimming any other whitespace, say a no-break space, could make a broken
+/// statement parse on the next run and break idempotence).
+fn lexer_space(c: char) -> bool {
+    matches!(c, ' ' | '\t' | '\x0b' | '\x0c' | '\r' | '\n')
 }
 
 fn render(items: &[Item]) -> String {

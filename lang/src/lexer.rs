@@ -6,7 +6,7 @@ use crate::span::Span;
 use logos::Logos;
 
 #[derive(Logos, Clone, Copy, Debug, PartialEq, Eq, Hash)]
-#[logos(skip r"[ \t\f]+")]
+#[logos(skip r"[ \t\f\x0B]+")]
 pub enum Token<'a> {
     #[token("set")]
     Set,

@@ -100,6 +100,8 @@ proptest! {
 
     #[test]
     fn front_end_never_panics_on_soup(src in soup()) {
+        // No hang either: a bound far above the milliseconds these inputs take.
+        let started = std::time::Instant::now();
         let c = check(&src);
         let _ = kelp_lang::render::render("soup.kelp", &src, &c.diagnostics, false);
         let f = format(&src);
@@ -108,6 +110,7 @@ proptest! {
         for d in c.diagnostics {
             prop_assert!(d.span.end <= src.len() && src.is_char_boundary(d.span.start) && src.is_char_boundary(d.span.end));
         }
+        prop_assert!(started.elapsed() < std::time::Duration::from_secs(5), "took {:?}", started.elapsed());
     }
 
     #[test]
@@ -144,4 +147,19 @@ fn samples_are_formatted_and_formatting_is_idempotent_on_them() {
     let f = format(sketch);
     assert_eq!(format(&f), f);
     assert_eq!(shape(&f), shape(sketch));
+}
+
+/// Inputs the mutation fuzzer found (tests/examples/fuzz_stable.rs), minimized: a lone
+/// carriage return before a comment made the formatter slice backwards (a panic), and a
+/// vertical tab or no-break space trimmed from a broken statement made it parse on the
+/// second run (formatting was not idempotent).
+#[test]
+fn fuzzer_findings_stay_fixed() {
+    for src in
+        ["*\rx#", "4\r2#", "let a0= \"1\" + 1\u{b}", "let a = 1\nlet a =02\u{b}", "let a  = 1\u{a0}", "x\r\r\n#c\ry"]
+    {
+        let once = format(src);
+        assert_eq!(format(&once), once, "{src:?}");
+        let _ = check(src);
+    }
 }

@@ -1,0 +1,7 @@
+#![no_main]
+//! cargo-fuzz target: `cargo +nightly fuzz run lexer` (see DEVELOPERS.md).
+
+#[path = "../targets.rs"]
+mod targets;
+
+libfuzzer_sys::fuzz_target!(|data: &[u8]| targets::lexer(data));
