@@ -302,6 +302,14 @@ pub const SETTINGS: &[Setting] = &[
     ),
     setting("max_genus", 50.0, 0.0, 200.0, true, "largest genus of a Riemann matrix"),
     setting("time_budget", 120.0, 0.0, 86400.0, false, "seconds one statement may take before it is stopped"),
+    setting(
+        "max_digits",
+        10000.0,
+        0.0,
+        100000.0,
+        true,
+        "largest number of digits of a numeric literal (coefficients included)",
+    ),
 ];
 
 pub fn setting_named(name: &str) -> Option<&'static Setting> {

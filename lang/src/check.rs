@@ -157,6 +157,12 @@ impl Checked {
 
 /// Parses and checks a whole file.
 pub fn check(src: &str) -> Checked {
+    check_with(src, &[])
+}
+
+/// [`check`] with settings that override the file's `set` statements (the command line's
+/// `--limit NAME=VALUE`; each already validated by [`Settings::set`]).
+pub fn check_with(src: &str, overrides: &[(String, f64)]) -> Checked {
     let parsed = parse(src);
     let mut c = Checker {
         diags: parsed.diagnostics,
@@ -168,16 +174,24 @@ pub fn check(src: &str) -> Checked {
         broken: parsed.program.stmts.iter().map(|s| matches!(s.kind, StmtKind::Error)).collect(),
     };
     let program = parsed.program;
+    // Settings first: they shape the checks (the digit limit of literals, for one).
+    let mut seen_settings: HashMap<String, Span> = HashMap::new();
+    for stmt in &program.stmts {
+        if let StmtKind::Set { name, value } = &stmt.kind {
+            c.check_setting(name, value, &mut seen_settings);
+        }
+    }
+    for (name, v) in overrides {
+        let _ = c.settings.set(name, *v);
+    }
     c.collect_definitions(&program);
     let def_order = c.dependency_order(&program);
     for &i in &def_order {
         c.check_definition(&program, i);
     }
-    let mut seen_settings: HashMap<String, Span> = HashMap::new();
     let mut rest = Vec::new();
     for (i, stmt) in program.stmts.iter().enumerate() {
         match &stmt.kind {
-            StmtKind::Set { name, value } => c.check_setting(name, value, &mut seen_settings),
             StmtKind::Expect { claim, within } => {
                 if !c.check_expect(claim, within.as_ref()) {
                     c.broken[i] = true;
@@ -647,7 +661,7 @@ impl Checker {
     fn infer(&mut self, e: &Expr) -> Kind {
         match &e.kind {
             ExprKind::Number(t) | ExprKind::Imag(t) => {
-                if let Some(m) = crate::number::literal_error(t) {
+                if let Some(m) = crate::number::literal_error_with(t, self.settings.get("max_digits") as usize) {
                     self.error(Code::NumberTooLarge, e.span, m);
                 }
                 Kind::Number

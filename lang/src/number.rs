@@ -5,13 +5,21 @@ use num_rational::BigRational;
 use num_traits::{One, Zero};
 
 /// Literals past these sizes are refused rather than expanded (a 10^6-digit literal or
-/// `1e1000000` would take the machine's memory and time for nothing).
+/// `1e1000000` would take the machine's memory and time for nothing). The digit limit is
+/// the `max_digits` setting (default `MAX_LITERAL_DIGITS`), at most `MAX_LITERAL_DIGITS_HARD`,
+/// which is all [`parse_exact`] takes.
 pub const MAX_LITERAL_DIGITS: usize = 10_000;
+pub const MAX_LITERAL_DIGITS_HARD: usize = 100_000;
 pub const MAX_DECIMAL_EXPONENT: i64 = 10_000;
 
-/// Why a literal would be refused by [`parse_exact`], without building the number
-/// (the checker validates every literal; only the evaluator needs its value).
+/// Why a literal would be refused at the default digit limit.
 pub fn literal_error(text: &str) -> Option<String> {
+    literal_error_with(text, MAX_LITERAL_DIGITS)
+}
+
+/// Why a literal would be refused with at most `max_digits` digits, without building the
+/// number (the checker validates every literal; only the evaluator needs its value).
+pub fn literal_error_with(text: &str, max_digits: usize) -> Option<String> {
     let (mantissa, exp) = match text.find(['e', 'E']) {
         Some(i) => match text[i + 1..].parse::<i64>() {
             Ok(e) => (&text[..i], e),
@@ -25,8 +33,10 @@ pub fn literal_error(text: &str) -> Option<String> {
         return Some(format!("the exponent of `{text}` is too large (at most {MAX_DECIMAL_EXPONENT} in size)"));
     }
     let digits = mantissa.bytes().filter(|b| *b != b'.').count();
-    if digits > MAX_LITERAL_DIGITS {
-        return Some(format!("a literal of {digits} digits is longer than the supported {MAX_LITERAL_DIGITS}"));
+    if digits > max_digits {
+        return Some(format!(
+            "a literal of {digits} digits is longer than the supported {max_digits} (the `max_digits` setting)"
+        ));
     }
     if digits == 0
         || mantissa.bytes().filter(|b| *b == b'.').count() > 1
@@ -55,9 +65,9 @@ pub fn parse_exact(text: &str) -> Result<BigRational, String> {
         Some(i) => (&mantissa[..i], &mantissa[i + 1..]),
         None => (mantissa, ""),
     };
-    if int_part.len() + frac_part.len() > MAX_LITERAL_DIGITS {
+    if int_part.len() + frac_part.len() > MAX_LITERAL_DIGITS_HARD {
         return Err(format!(
-            "a literal of {} digits is longer than the supported {MAX_LITERAL_DIGITS}",
+            "a literal of {} digits is longer than the supported {MAX_LITERAL_DIGITS_HARD}",
             int_part.len() + frac_part.len()
         ));
     }
@@ -138,9 +148,11 @@ mod literal_checks {
     #[test]
     fn literal_error_agrees_with_parse_exact() {
         for t in ["0", "12", "0.5", "1e-10", "2.5E3", "1e99999999", "1e10001", "007", "1.2.3", ".", "1e"] {
-            assert_eq!(literal_error(t).is_some(), parse_exact(t).is_err(), "{t}");
+            assert_eq!(literal_error_with(t, MAX_LITERAL_DIGITS_HARD).is_some(), parse_exact(t).is_err(), "{t}");
         }
-        let long = "9".repeat(MAX_LITERAL_DIGITS + 1);
-        assert!(literal_error(&long).is_some() && parse_exact(&long).is_err());
+        let long = "9".repeat(MAX_LITERAL_DIGITS_HARD + 1);
+        assert!(literal_error_with(&long, MAX_LITERAL_DIGITS_HARD).is_some() && parse_exact(&long).is_err());
+        let medium = "9".repeat(MAX_LITERAL_DIGITS + 1);
+        assert!(literal_error(&medium).is_some() && parse_exact(&medium).is_ok());
     }
 }

@@ -4,7 +4,7 @@
 //! SARIF 2.1.0 or JUnit XML.
 
 use kelp_evaluator::{evaluate, json::file_report, Mode};
-use kelp_lang::{check, render::render, Code, Diagnostic, Encoding, LineIndex, Severity};
+use kelp_lang::{render::render, Code, Diagnostic, Encoding, LineIndex, Severity};
 use serde_json::{json, Value as J};
 use std::path::{Path, PathBuf};
 
@@ -112,11 +112,8 @@ pub fn outcome(path: &Path, mode: &Mode, opts: &Options) -> Result<Outcome, Stri
     let (verbose, color) = (opts.verbose, opts.color);
     let shown = path.display().to_string();
     let (src, utf8) = crate::cli::read_source(path)?;
-    let mut checked = check(&src);
     // Command-line limits override the file's (they were validated when parsed).
-    for (name, v) in &opts.limits {
-        checked.settings.set(name, *v)?;
-    }
+    let checked = kelp_lang::check::check_with(&src, &opts.limits);
     let eval = evaluate(&checked, &src, mode);
     let mut diags: Vec<Diagnostic> =
         utf8.into_iter().chain(checked.diagnostics.iter().cloned()).chain(eval.diagnostics.iter().cloned()).collect();

@@ -51,7 +51,7 @@ enum Command {
         #[arg(long, value_name = "DIR")]
         cache: Option<PathBuf>,
         /// Override a limit of every file: max_points, max_lattice_points, max_degree,
-        /// max_genus or time_budget (seconds per statement). Repeatable.
+        /// max_genus, max_digits or time_budget (seconds per statement). Repeatable.
         #[arg(long = "limit", value_name = "NAME=VALUE", value_parser = crate::batch::parse_limit)]
         limits: Vec<(String, f64)>,
     },

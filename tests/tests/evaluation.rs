@@ -304,3 +304,15 @@ fn a_claim_out_of_time_is_reported_as_such() {
     assert!(r.codes.contains(&Code::BudgetExceeded), "{:?}", r.messages);
     assert!(r.messages.iter().any(|m| m.contains("time budget")), "{:?}", r.messages);
 }
+
+/// The digit limit of literals (coefficients included) is a setting too.
+#[test]
+fn literal_digits_follow_max_digits() {
+    let long = "7".repeat(12_000);
+    let refused = kelp_lang::check(&format!("let a = {long}\n"));
+    assert!(refused.diagnostics.iter().any(|d| d.code == Code::NumberTooLarge && d.message.contains("max_digits")));
+    let allowed = kelp_lang::check(&format!("set max_digits = 20000\nlet a = {long}\ncurve c: y^2 = x^3 - {long}\n"));
+    assert!(!allowed.has_errors(), "{:?}", allowed.diagnostics);
+    let cli = kelp_lang::check::check_with(&format!("let a = {long}\n"), &[("max_digits".into(), 20_000.0)]);
+    assert!(!cli.has_errors(), "{:?}", cli.diagnostics);
+}
