@@ -342,12 +342,18 @@ impl Evaluator<'_> {
             _ => return Err(fail(Code::WrongKind, pe.span, "`at` must be a point (x, y) or (x : y : z)")),
         }
         let Some(shape) = recognise(&c.equation.poly, c.equation.projective) else {
-            let Some((xp, yp)) = at else {
-                return Err(fail(
-                    Code::NotSupported,
-                    pe.span,
-                    "points at infinity are supported for curves y^m = f(x) only; pick a finite point",
-                ));
+            // A finite point in the chart z = 1, a point at infinity in the chart of its
+            // largest coordinate.
+            let (chart, u0, v0) = match (at, at_infinity) {
+                (Some((xp, yp)), _) => (2, xp, yp),
+                (None, Some((px, py))) => {
+                    if px.norm() >= py.norm() {
+                        (0, py / px, C64::new(0.0, 0.0))
+                    } else {
+                        (1, px / py, C64::new(0.0, 0.0))
+                    }
+                }
+                (None, None) => unreachable!("a point is finite or at infinity"),
             };
             let r = self.riemann_matrix(&c, true, ce.span)?;
             let forms = r
@@ -356,14 +362,15 @@ impl Evaluator<'_> {
                 .clone()
                 .ok_or_else(|| fail(Code::NotSupported, ce.span, "no differentials to expand"))?;
             let f = crate::algebra::curve::homogeneous(&c.equation.poly, c.equation.projective);
-            let chart = crate::algebra::bivar::P2::chart(&f, 2);
+            let chart_poly = crate::algebra::bivar::P2::chart(&f, chart);
             let d = f.degree().unwrap_or(0) as usize;
             let mut user = vec![vec![C64::new(0.0, 0.0); d + 1]; d + 1];
-            for (&(i, j), v) in &chart.terms {
+            for (&(i, j), v) in &chart_poly.terms {
                 user[j as usize][i as usize] += kelp_lang::number::to_f64(v);
             }
-            let k = crate::waves::krichever::krichever_general(&forms, &r, &user, xp, yp)
+            let k = crate::waves::krichever::krichever_general(&forms, &r, &user, chart, u0, v0)
                 .map_err(|m| fail(Code::EvalFailed, pe.span, format!("`krichever({})`: {m}", c.name)))?;
+            let (xp, yp) = at.unwrap_or((C64::new(f64::INFINITY, 0.0), C64::new(f64::INFINITY, 0.0)));
             return self.finish_krichever(&c, ce.span, args, r, k, (xp, yp));
         };
         let place = match (at, at_infinity) {

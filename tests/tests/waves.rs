@@ -297,8 +297,8 @@ fn wave_from(tau: &nalgebra::DMatrix<C64>, u: Vec<C64>, v: Vec<C64>, w: Vec<C64>
 }
 
 // The decisive check on general plane curves (covering route): Krichever's wave of a
-// smooth quartic, of Klein's quartic at a point where y - y_P is the local parameter, and
-// of a nodal quartic solves KP at rounding level; the same construction with U, V, W
+// smooth quartic, of Klein's quartic at a point where y - y_P is the local parameter and
+// at two of its points at infinity, and of a nodal quartic solves KP at rounding level; the same construction with U, V, W
 // normalized by a perturbed a-period matrix, or with U, V, W of another curve, does not
 // (each with the c that best fits Dubrovin's conditions, so only U, V, W are wrong).
 #[test]
@@ -307,7 +307,8 @@ fn krichever_on_general_plane_curves_and_mismatched_data() {
                curve klein: x^3*y + y^3*z + z^3*x\n\
                curve nodal: 5*x^2*y^2 - x^2*z^2 + 13*x*y^2*z - 4*x*y*z^2 - x*z^3 + 7*y^2*z^2 - 4*y*z^3\n\
                wave wq = krichever(quartic, at = (1, 1))\nwave wk = krichever(klein, at = (0, 0))\n\
-               wave wn = krichever(nodal, at = (1 : -2 : -2))\n";
+               wave wn = krichever(nodal, at = (1 : -2 : -2))\n\
+               wave wi = krichever(klein, at = (1 : 0 : 0))\nwave wj = krichever(klein, at = (0 : 1 : 0))\n";
     let e = eval(src);
     let theta = |name: &str| -> ThetaWave {
         let w = wave(&e, name);
@@ -322,7 +323,7 @@ fn krichever_on_general_plane_curves_and_mismatched_data() {
             accuracy: t.accuracy,
         }
     };
-    for name in ["wq", "wk", "wn"] {
+    for name in ["wq", "wk", "wn", "wi", "wj"] {
         let r = residual(&wave(&e, name));
         assert!(r < 1e-8, "{name}: residual {r:.2e}");
     }

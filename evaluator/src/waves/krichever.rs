@@ -261,10 +261,13 @@ fn s_bivariate(c: &[Vec<C64>], x: &S, y: &S, dy: bool) -> S {
 /// is x - x_P when F_y(P) != 0, else y - y_P; the curve is expanded as a power series in
 /// it by Newton's method on series, carried to the covering route's coordinates, and the
 /// differentials expanded there.
+/// `chart` is the homogeneous coordinate set to 1 (2 for the affine chart z = 1; 0 or 1 for
+/// a point at infinity); `user` and (xp, yp) are in that chart's two other coordinates.
 pub fn krichever_general(
     forms: &crate::periods::general::PlaneForms,
     r: &RiemannMatrix,
     user: &[Vec<C64>],
+    chart: usize,
     xp: C64,
     yp: C64,
 ) -> Result<KricheverData, String> {
@@ -302,13 +305,18 @@ pub fn krichever_general(
             x = s_sub(&x, &s_mul(&val, &s_inv(&der)));
         }
     }
-    // (x : y : 1) = change (X : Y : Z), so (X, Y, Z) = change^-1 (x, y, 1).
+    // The point of P^2 as series, the chart's coordinate 1 in its place; then
+    // (x : y : z) = change (X : Y : Z), so (X, Y, Z) = change^-1 (x, y, z).
     let m = nalgebra::Matrix3::from_fn(|i, j| forms.change[i][j] as f64);
     let n = m.try_inverse().ok_or("singular change of coordinates")?;
     let one: S = [C64::new(1.0, 0.0), Z, Z, Z];
+    let rest: Vec<usize> = (0..3).filter(|&k| k != chart).collect();
+    let mut point = [one; 3];
+    point[rest[0]] = x;
+    point[rest[1]] = y;
     let comb = |row: usize| -> S {
         let mut out = [Z; 4];
-        for (k, s) in [x, y, one].iter().enumerate() {
+        for (k, s) in point.iter().enumerate() {
             for t in 0..4 {
                 out[t] += s[t] * n[(row, k)];
             }
@@ -316,35 +324,50 @@ pub fn krichever_general(
         out
     };
     let (cx, cy, cz) = (comb(0), comb(1), comb(2));
-    if cz[0].norm() < 1e-12 * (cx[0].norm() + cy[0].norm()) {
-        return Err(
-            "the point lies on the line at infinity of the coordinates the periods use; pick another point".into()
-        );
-    }
-    let iz = s_inv(&cz);
-    let (xx, yy) = (s_mul(&cx, &iz), s_mul(&cy, &iz));
-    // omega = P dX / G_Y = -P dY / G_X on the curve: divide by the larger of the two at P
-    // (G_Y vanishes where P is a branch point of the covering's projection).
-    let dxx: S = [xx[1], xx[2] * 2.0, xx[3] * 3.0, Z];
-    let dyy: S = [yy[1], yy[2] * 2.0, yy[3] * 3.0, Z];
-    let gy = s_bivariate(&forms.plane.c, &xx, &yy, true);
-    let gx_rows: Vec<Vec<C64>> = forms
-        .plane
-        .c
-        .iter()
-        .map(|row| row.iter().enumerate().skip(1).map(|(i, v)| *v * i as f64).collect::<Vec<_>>())
-        .collect();
-    let gx = s_bivariate(&gx_rows, &xx, &yy, false);
+    // In homogeneous coordinates omega = P(X, Y, Z) (Z dX - X dZ) / G_Y = -P (Z dY - Y dZ) / G_X
+    // (from P(x, y) dx / G_y in the chart Z = 1; invariant under rescaling), so no chart of
+    // the covering route is needed and points on its line at infinity are fine. Divide by
+    // the larger of G_Y, G_X at P (G_Y vanishes at branch points of the projection).
+    let der = |s: &S| -> S { [s[1], s[2] * 2.0, s[3] * 3.0, Z] };
+    let powers = |s: &S, e: usize| (0..e).fold(one, |acc, _| s_mul(&acc, s));
+    let dg = forms.plane.d;
+    // sum of c[j][i] * weight * X^(i - di) Y^(j - dj) Z^(rest) for the partials of G.
+    let partial = |dx: bool| -> S {
+        let mut out = [Z; 4];
+        for (j, row) in forms.plane.c.iter().enumerate() {
+            for (i, v) in row.iter().enumerate() {
+                if *v == Z || i + j > dg {
+                    continue;
+                }
+                let (w, pi, pj) = if dx { (i, i.wrapping_sub(1), j) } else { (j, i, j.wrapping_sub(1)) };
+                if w == 0 {
+                    continue;
+                }
+                let t = s_mul(&s_mul(&powers(&cx, pi), &powers(&cy, pj)), &powers(&cz, dg - i - j));
+                for k in 0..4 {
+                    out[k] += t[k] * *v * w as f64;
+                }
+            }
+        }
+        out
+    };
+    let (gy, gx) = (partial(false), partial(true));
     let common = if gy[0].norm() >= gx[0].norm() {
-        s_mul(&dxx, &s_inv(&gy))
+        s_mul(&s_sub(&s_mul(&cz, &der(&cx)), &s_mul(&cx, &der(&cz))), &s_inv(&gy))
     } else {
-        let q = s_mul(&dyy, &s_inv(&gx));
+        let q = s_mul(&s_sub(&s_mul(&cz, &der(&cy)), &s_mul(&cy, &der(&cz))), &s_inv(&gx));
         [-q[0], -q[1], -q[2], -q[3]]
     };
+    let mono: Vec<S> = forms
+        .monomials
+        .iter()
+        .map(|&(a, b)| {
+            let (a, b) = (a as usize, b as usize);
+            s_mul(&s_mul(&powers(&cx, a), &powers(&cy, b)), &powers(&cz, dg - 3 - a - b))
+        })
+        .collect();
     let g = forms.basis.ncols();
     let mut alpha = DMatrix::<C64>::zeros(g, 3);
-    let powers = |s: &S, e: u32| (0..e).fold(one, |acc, _| s_mul(&acc, s));
-    let mono: Vec<S> = forms.monomials.iter().map(|&(a, b)| s_mul(&powers(&xx, a), &powers(&yy, b))).collect();
     for l in 0..g {
         let mut p = [Z; 4];
         for (k, s) in mono.iter().enumerate() {
@@ -357,5 +380,21 @@ pub fn krichever_general(
             alpha[(l, k)] = w[k];
         }
     }
-    normalize(r, alpha, if by_x { "x - x_P".into() } else { "y - y_P".into() })
+    let names = ["x", "y", "z"];
+    let coord = |k: usize| if chart == 2 { names[k].to_string() } else { format!("{}/{}", names[k], names[chart]) };
+    let (u, v) = (coord(rest[0]), coord(rest[1]));
+    let label = if by_x { format!("{u} - ({u})_P") } else { format!("{v} - ({v})_P") };
+    normalize(
+        r,
+        alpha,
+        if chart == 2 {
+            if by_x {
+                "x - x_P".into()
+            } else {
+                "y - y_P".into()
+            }
+        } else {
+            label
+        },
+    )
 }
