@@ -10,22 +10,24 @@ use num_complex::Complex64 as C64;
 
 /// All complex roots (with multiplicity) of a polynomial, approximately.
 pub fn complex_roots(p: &UPoly) -> Vec<C64> {
-    let Some(n) = p.degree() else { return vec![] };
-    if n == 0 {
-        return vec![];
+    match p.degree() {
+        None | Some(0) => vec![],
+        Some(_) => aberth(&p.0.iter().map(|v| C64::new(kelp_lang::number::to_f64(v), 0.0)).collect::<Vec<_>>()),
     }
-    let lead = kelp_lang::number::to_f64(&p.lead());
-    let c: Vec<C64> = p.0.iter().map(|v| C64::new(kelp_lang::number::to_f64(v) / lead, 0.0)).collect();
-    // Cauchy bound for the starting circle.
+}
+
+/// All roots of a polynomial with complex coefficients (lowest first, the leading one
+/// nonzero) by the Aberth–Ehrlich iteration from a circle inside the Cauchy bound.
+pub fn aberth(p: &[C64]) -> Vec<C64> {
+    let n = p.len() - 1;
+    let lead = p[n];
+    let c: Vec<C64> = p.iter().map(|v| v / lead).collect();
     let radius = 1.0 + c[..n].iter().map(|v| v.norm()).fold(0.0, f64::max);
     let mut z: Vec<C64> = (0..n)
-        .map(|k| {
-            C64::from_polar(radius.min(1e6) * 0.5 + 0.1, 2.0 * std::f64::consts::PI * (k as f64 + 0.25) / n as f64)
-        })
+        .map(|k| C64::from_polar(radius.min(1e6) * 0.5 + 0.1, std::f64::consts::TAU * (k as f64 + 0.25) / n as f64))
         .collect();
     let eval = |x: C64| -> (C64, C64) {
-        let mut pv = C64::new(0.0, 0.0);
-        let mut dv = C64::new(0.0, 0.0);
+        let (mut pv, mut dv) = (C64::new(0.0, 0.0), C64::new(0.0, 0.0));
         for v in c.iter().rev() {
             dv = dv * x + pv;
             pv = pv * x + v;

@@ -23,27 +23,9 @@ pub struct KricheverData {
 
 /// f(x0 + lam) = f0 (1 + g1 lam + g2 lam^2 + ...): (f0, g1, g2).
 fn expand(f: &[C64], x0: C64) -> (C64, C64, C64) {
-    // Taylor coefficients of f at x0 by repeated synthetic division.
-    let mut c: Vec<C64> = f.to_vec();
-    let mut taylor = vec![];
-    for _ in 0..3 {
-        let mut acc = C64::new(0.0, 0.0);
-        let mut next = vec![C64::new(0.0, 0.0); c.len().saturating_sub(1)];
-        for k in (0..c.len()).rev() {
-            acc = acc * x0 + c[k];
-            if k > 0 {
-                next[k - 1] = acc;
-            }
-        }
-        taylor.push(acc);
-        // `next` holds the quotient coefficients (low to high) of (f - f(x0)) / (x - x0).
-        c = next;
-        if c.is_empty() {
-            break;
-        }
-    }
-    taylor.resize(3, C64::new(0.0, 0.0));
-    (taylor[0], taylor[1] / taylor[0], taylor[2] / taylor[0])
+    let mut t = crate::periods::general::plane::taylor(f, x0);
+    t.resize(3, C64::new(0.0, 0.0));
+    (t[0], t[1] / t[0], t[2] / t[0])
 }
 
 /// Where the wave is taken from.
@@ -159,7 +141,9 @@ pub fn krichever_superelliptic(
     }
     if yp.norm() < 1e-12 * scale.powf(1.0 / m) {
         // f0 = f(x_P) = 0 here, so `expand`'s ratios are useless: take f1, f2 directly.
-        let (f1, f2) = taylor12(&f, xp);
+        let mut t = crate::periods::general::plane::taylor(&f, xp);
+        t.resize(3, C64::new(0.0, 0.0));
+        let (f1, f2) = (t[1], t[2]);
         return at_branch_point(s, r, xp, f1, f2);
     }
     let xv = if s.swapped { "y" } else { "x" };
@@ -181,21 +165,6 @@ pub fn krichever_superelliptic(
         alpha[(l, 2)] = lead * (xp2 + xp1 * a1 + xp0 * a2);
     }
     normalize(r, alpha, format!("{xv} - {xv}_P"))
-}
-
-/// f'(x0) and f''(x0) / 2.
-fn taylor12(f: &[C64], x0: C64) -> (C64, C64) {
-    let (mut d1, mut d2) = (C64::new(0.0, 0.0), C64::new(0.0, 0.0));
-    for (k, c) in f.iter().enumerate() {
-        let k = k as i32;
-        if k >= 1 {
-            d1 += *c * k as f64 * x0.powi(k - 1);
-        }
-        if k >= 2 {
-            d2 += *c * (k * (k - 1)) as f64 / 2.0 * x0.powi(k - 2);
-        }
-    }
-    (d1, d2)
 }
 
 /// Truncated power series in the local parameter: coefficients of lam^0..lam^3.

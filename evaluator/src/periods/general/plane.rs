@@ -109,34 +109,7 @@ pub fn taylor(p: &[C64], y: C64) -> Vec<C64> {
     out
 }
 
-/// All roots of a polynomial with complex coefficients (lowest first, leading one nonzero)
-/// by the Aberth–Ehrlich iteration.
+/// All roots of a polynomial with complex coefficients (lowest first, leading one nonzero).
 pub fn roots(p: &[C64]) -> Vec<C64> {
-    let n = p.len() - 1;
-    let lead = p[n];
-    let c: Vec<C64> = p.iter().map(|v| v / lead).collect();
-    let radius = 1.0 + c[..n].iter().map(|v| v.norm()).fold(0.0, f64::max);
-    let mut z: Vec<C64> = (0..n)
-        .map(|k| C64::from_polar(radius.min(1e6) * 0.5 + 0.1, std::f64::consts::TAU * (k as f64 + 0.25) / n as f64))
-        .collect();
-    for _ in 0..500 {
-        let mut moved: f64 = 0.0;
-        for i in 0..n {
-            let (pv, dv) = horner(&c, z[i]);
-            if pv.norm() == 0.0 {
-                continue;
-            }
-            let ratio = pv / dv;
-            let s: C64 = (0..n).filter(|&j| j != i).map(|j| C64::new(1.0, 0.0) / (z[i] - z[j])).sum();
-            let step = ratio / (C64::new(1.0, 0.0) - ratio * s);
-            if step.re.is_finite() && step.im.is_finite() {
-                z[i] -= step;
-                moved = moved.max(step.norm() / (1.0 + z[i].norm()));
-            }
-        }
-        if moved < 1e-15 {
-            break;
-        }
-    }
-    z
+    crate::algebra::roots::aberth(p)
 }
