@@ -40,7 +40,7 @@ pub fn checker(data: &[u8]) {
 }
 
 /// The syntax tree without spans, for comparing a file with its formatted form.
-fn shape(src: &str) -> String {
+pub fn shape(src: &str) -> String {
     let s = format!("{:?}", kelp_lang::parse(src).program.stmts);
     let mut out = String::with_capacity(s.len());
     let mut rest = s.as_str();

@@ -225,7 +225,7 @@ impl Evaluator<'_> {
                     _ => return Err(fail(Code::BadSettingValue, t.span, "a tolerance must be a positive real number")),
                 }
             }
-            None => self.checked.settings.tolerance,
+            None => self.checked.settings.tolerance(),
         };
         let decision = compare(op, &l, &r, tol, lhs.span.join(rhs.span))?;
         let mut detail = format!("{} = {}", self.text(lhs.span), show(&l));
@@ -303,7 +303,7 @@ impl Evaluator<'_> {
                 }
                 let r = self.expr(rhs)?;
                 if op.is_comparison() {
-                    let d = compare(*op, &l, &r, self.checked.settings.tolerance, e.span)?;
+                    let d = compare(*op, &l, &r, self.checked.settings.tolerance(), e.span)?;
                     return match d.holds {
                         Some(b) => Ok(Valued::exact(Value::Bool(b))),
                         None => Err(fail(
@@ -404,7 +404,7 @@ impl Evaluator<'_> {
                         format!("`is_riemann` needs a square matrix; this is {} x {}", m.len(), m[0].len()),
                     ));
                 }
-                let r = riemann_check(&to_complex_matrix(m), self.checked.settings.tolerance + v.error_bound);
+                let r = riemann_check(&to_complex_matrix(m), self.checked.settings.tolerance() + v.error_bound);
                 Ok(Valued { value: Value::Bool(r.holds()), error_bound: 0.0, reason: Some(r.reason()) })
             }
             "theta" => self.theta_call(span, args),

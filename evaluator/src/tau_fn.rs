@@ -80,7 +80,7 @@ impl Evaluator<'_> {
         let Some(shape) = recognise(&c.equation.poly, c.equation.projective) else {
             return self.general_matrix(c, reduce, span);
         };
-        let accuracy = self.checked.settings.accuracy;
+        let accuracy = self.checked.settings.accuracy();
         genus_limit(superelliptic_genus(shape.m, shape.f.degree().unwrap_or(0) as u32) as i64, span, &c.name)?;
         let p = c
             .periods

@@ -90,13 +90,13 @@ impl Evaluator<'_> {
             return Err(fail(Code::ShapeMismatch, te.span, "`theta` needs a square matrix"));
         }
         let tm = nalgebra::DMatrix::from_fn(n, n, |i, j| t[i][j]);
-        let tol = self.checked.settings.tolerance + tv.error_bound;
+        let tol = self.checked.settings.tolerance() + tv.error_bound;
         let ctx = ThetaContext::new(&tm, tol).map_err(|e| theta_error(e, te.span))?;
         // Aim well below both the requested accuracy and the claim tolerance, so that a
         // claim `== ... within tolerance` is decided rather than left open; the extra
         // lattice points cost little (the radius grows like sqrt(log(1/accuracy))).
         let s = &self.checked.settings;
-        let accuracy = (s.accuracy.min(s.tolerance) * 1e-3).max(1e-17);
+        let accuracy = (s.accuracy().min(s.tolerance()) * 1e-3).max(1e-17);
         // One pass computes the value and, when T or z carry errors, the derivatives that
         // propagate them: |d theta / d z_j| for z, |d theta / d tau_jk| = |d^2 theta /
         // dz_j dz_k| / (2 pi (1 + delta_jk)) for T (heat equation).

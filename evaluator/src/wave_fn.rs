@@ -246,7 +246,7 @@ impl Evaluator<'_> {
                 };
                 let tau = crate::linalg::to_complex_matrix(&m);
                 let g = tau.nrows();
-                let ctx = ThetaContext::new(&tau, self.checked.settings.tolerance.max(1e-8))
+                let ctx = ThetaContext::new(&tau, self.checked.settings.tolerance().max(1e-8))
                     .map_err(|e| crate::theta_fn::theta_error(e, te.span))?;
                 let mut vecs = vec![];
                 for k in ["u", "v", "w"] {
@@ -323,37 +323,37 @@ impl Evaluator<'_> {
         };
         let pe = Self::keyword(args, "at")
             .ok_or_else(|| fail(Code::MissingArgument, span, "`krichever` needs a point `at = (x, y)`"))?;
-        // None: the point at infinity (z = 0), given as its projective coordinates.
-        let at: Option<(C64, C64)>;
-        let mut at_infinity: Option<(C64, C64)> = None;
-        match self.expr(pe)?.value {
+        // A finite point, or a point at infinity (z = 0) by its first two coordinates.
+        enum Given {
+            Finite(C64, C64),
+            AtInfinity(C64, C64),
+        }
+        let given = match self.expr(pe)?.value {
             Value::Point { coords, projective: false } if coords.len() == 2 => {
-                at = Some((coords[0].to_complex(), coords[1].to_complex()));
+                Given::Finite(coords[0].to_complex(), coords[1].to_complex())
             }
             Value::Point { coords, projective: true } if coords.len() == 3 => {
                 let z = coords[2].to_complex();
                 if z.norm() == 0.0 {
-                    at = None;
-                    at_infinity = Some((coords[0].to_complex(), coords[1].to_complex()));
+                    Given::AtInfinity(coords[0].to_complex(), coords[1].to_complex())
                 } else {
-                    at = Some((coords[0].to_complex() / z, coords[1].to_complex() / z));
+                    Given::Finite(coords[0].to_complex() / z, coords[1].to_complex() / z)
                 }
             }
             _ => return Err(fail(Code::WrongKind, pe.span, "`at` must be a point (x, y) or (x : y : z)")),
-        }
+        };
+        // How the point is shown in the wave's description (infinite at infinity).
+        let shown = match given {
+            Given::Finite(x, y) => (x, y),
+            Given::AtInfinity(..) => (C64::new(f64::INFINITY, 0.0), C64::new(f64::INFINITY, 0.0)),
+        };
         let Some(shape) = recognise(&c.equation.poly, c.equation.projective) else {
             // A finite point in the chart z = 1, a point at infinity in the chart of its
             // largest coordinate.
-            let (chart, u0, v0) = match (at, at_infinity) {
-                (Some((xp, yp)), _) => (2, xp, yp),
-                (None, Some((px, py))) => {
-                    if px.norm() >= py.norm() {
-                        (0, py / px, C64::new(0.0, 0.0))
-                    } else {
-                        (1, px / py, C64::new(0.0, 0.0))
-                    }
-                }
-                (None, None) => unreachable!("a point is finite or at infinity"),
+            let (chart, u0, v0) = match given {
+                Given::Finite(xp, yp) => (2, xp, yp),
+                Given::AtInfinity(px, py) if px.norm() >= py.norm() => (0, py / px, C64::new(0.0, 0.0)),
+                Given::AtInfinity(px, py) => (1, px / py, C64::new(0.0, 0.0)),
             };
             let r = self.riemann_matrix(&c, true, ce.span)?;
             let forms = r
@@ -370,15 +370,14 @@ impl Evaluator<'_> {
             }
             let k = crate::waves::krichever::krichever_general(&forms, &r, &user, chart, u0, v0)
                 .map_err(|m| fail(Code::EvalFailed, pe.span, format!("`krichever({})`: {m}", c.name)))?;
-            let (xp, yp) = at.unwrap_or((C64::new(f64::INFINITY, 0.0), C64::new(f64::INFINITY, 0.0)));
-            return self.finish_krichever(&c, ce.span, args, r, k, (xp, yp));
+            return self.finish_krichever(&c, ce.span, args, r, k, shown);
         };
-        let place = match (at, at_infinity) {
-            (Some((xp, yp)), _) => {
+        let place = match given {
+            Given::Finite(xp, yp) => {
                 let (sx, sy) = if shape.swapped { (yp, xp) } else { (xp, yp) };
                 Place::Finite(sx, sy)
             }
-            (None, Some((px, py))) => {
+            Given::AtInfinity(px, py) => {
                 // In the shape's coordinates (X, Y), Y^m = f(X) with deg f = n: at X = infinity,
                 // Y ~ X^(n/m), so the plane point is (0 : 1 : 0) when n > m and (1 : 0 : 0) when n < m.
                 let (qx, qy) = if shape.swapped { (py, px) } else { (px, py) };
@@ -398,30 +397,23 @@ impl Evaluator<'_> {
                 }
                 Place::Infinity
             }
-            (None, None) => unreachable!("a point is finite or at infinity"),
         };
         let r = self.riemann_matrix(&c, true, ce.span)?;
         let k = crate::waves::krichever::krichever_at(&shape, &r, place)
             .map_err(|m| fail(Code::EvalFailed, pe.span, format!("`krichever({})`: {m}", c.name)))?;
-        let (xp, yp) = match place {
-            Place::Finite(a, b) if shape.swapped => (b, a),
-            Place::Finite(a, b) => (a, b),
-            Place::Infinity => (C64::new(f64::INFINITY, 0.0), C64::new(f64::INFINITY, 0.0)),
-        };
-        self.finish_krichever(&c, ce.span, args, r, k, (xp, yp))
+        self.finish_krichever(&c, ce.span, args, r, k, shown)
     }
 
     /// c from Dubrovin's conditions, the shift, and the wave with its description.
     fn finish_krichever(
         &mut self,
         c: &crate::value::CurveValue,
-        cspan: Span,
+        ce_span: Span,
         args: &[Arg],
         r: crate::periods::RiemannMatrix,
         k: crate::waves::krichever::KricheverData,
         (xp, yp): (C64, C64),
     ) -> Result<Valued, Fail> {
-        let ce_span = cspan;
         let (cc, _d, dres) =
             dubrovin_constants(&r.tau, &k.u, &k.v, &k.w).map_err(|e| crate::theta_fn::theta_error(e, ce_span))?;
         let g = k.u.len();

@@ -92,13 +92,17 @@ pub struct CurveEquation {
 
 #[derive(Clone, Debug)]
 pub struct Settings {
-    pub tolerance: f64,
-    pub accuracy: f64,
     /// Every setting's value by name (defaults included).
     pub values: std::collections::BTreeMap<&'static str, f64>,
 }
 
 impl Settings {
+    pub fn tolerance(&self) -> f64 {
+        self.get("tolerance")
+    }
+    pub fn accuracy(&self) -> f64 {
+        self.get("accuracy")
+    }
     pub fn get(&self, name: &str) -> f64 {
         self.values.get(name).copied().unwrap_or_else(|| builtins::setting_named(name).map_or(f64::NAN, |s| s.default))
     }
@@ -111,22 +115,13 @@ impl Settings {
             return Err(format!("`{name}` ({}) takes {what} above {} and at most {}", s.meaning, s.min, s.max));
         }
         self.values.insert(s.name, v);
-        match name {
-            "tolerance" => self.tolerance = v,
-            "accuracy" => self.accuracy = v,
-            _ => {}
-        }
         Ok(())
     }
 }
 
 impl Default for Settings {
     fn default() -> Self {
-        Settings {
-            tolerance: SETTINGS[0].default,
-            accuracy: SETTINGS[1].default,
-            values: SETTINGS.iter().map(|s| (s.name, s.default)).collect(),
-        }
+        Settings { values: SETTINGS.iter().map(|s| (s.name, s.default)).collect() }
     }
 }
 

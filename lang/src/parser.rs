@@ -28,8 +28,10 @@ fn sp(s: SimpleSpan) -> Span {
 
 /// Parses a whole file. Never fails: broken statements become `StmtKind::Error`.
 pub fn parse(src: &str) -> Parsed {
-    let threads = std::thread::available_parallelism().map_or(1, |n| n.get()).min(4);
-    parse_on(src, threads)
+    // Asked once per process: on Linux the answer reads cgroup files, too slow for every
+    // keystroke of an editor.
+    static THREADS: std::sync::OnceLock<usize> = std::sync::OnceLock::new();
+    parse_on(src, *THREADS.get_or_init(|| std::thread::available_parallelism().map_or(1, |n| n.get()).min(4)))
 }
 
 fn parse_on(src: &str, threads: usize) -> Parsed {

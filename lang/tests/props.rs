@@ -1,7 +1,7 @@
 //! Properties: nothing in the front end panics on any input, and formatting is
 //! idempotent and keeps the meaning (same syntax tree up to spans).
 
-use kelp_lang::{check, fmt::format, parse};
+use kelp_lang::{check, fmt::format};
 use proptest::prelude::*;
 
 /// Token-ish soup: fragments of the language glued at random, which reaches far more of
@@ -80,20 +80,10 @@ fn program() -> impl Strategy<Value = String> {
 }
 
 /// The tree with spans erased, for comparing meaning.
-fn shape(src: &str) -> String {
-    let p = parse(src);
-    let s = format!("{:?}", p.program.stmts);
-    // Spans print as `Span { start: N, end: M }`; drop them.
-    let mut out = String::with_capacity(s.len());
-    let mut rest = s.as_str();
-    while let Some(i) = rest.find("Span { start: ") {
-        out.push_str(&rest[..i]);
-        let j = rest[i..].find('}').unwrap();
-        rest = &rest[i + j + 1..];
-    }
-    out.push_str(rest);
-    out
-}
+/// The syntax tree without spans (shared with the fuzz targets).
+#[path = "../../fuzz/targets.rs"]
+mod targets;
+use targets::shape;
 
 proptest! {
     #![proptest_config(ProptestConfig { cases: 400, .. ProptestConfig::default() })]

@@ -349,21 +349,13 @@ pub fn krichever_general(
             alpha[(l, k)] = w[k];
         }
     }
+    // The local parameter by name: x - x_P in the chart z = 1, (y/x) - (y/x)_P in x = 1, ...
     let names = ["x", "y", "z"];
-    let coord = |k: usize| if chart == 2 { names[k].to_string() } else { format!("{}/{}", names[k], names[chart]) };
-    let (u, v) = (coord(rest[0]), coord(rest[1]));
-    let label = if by_x { format!("{u} - ({u})_P") } else { format!("{v} - ({v})_P") };
-    normalize(
-        r,
-        alpha,
-        if chart == 2 {
-            if by_x {
-                "x - x_P".into()
-            } else {
-                "y - y_P".into()
-            }
-        } else {
-            label
-        },
-    )
+    let k = rest[if by_x { 0 } else { 1 }];
+    let label = if chart == 2 {
+        format!("{0} - {0}_P", names[k])
+    } else {
+        format!("({0}/{1}) - ({0}/{1})_P", names[k], names[chart])
+    };
+    normalize(r, alpha, label)
 }

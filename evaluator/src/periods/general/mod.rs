@@ -258,8 +258,21 @@ struct Walk<'a> {
     /// P_l / G_y itself, not each monomial apart: near a singular point the monomials'
     /// integrals are large and only their adjoint combination is not.
     basis: &'a DMatrix<C64>,
+    /// Both rules' nodes in order along [-1, 1], with their weights and whether they belong
+    /// to the larger rule (merged once, used on every piece).
+    rule_nodes: &'a [(f64, f64, bool)],
     steps: usize,
     nodes: usize,
+}
+
+/// The nodes of the two rules of `RULES`, merged in order.
+fn merged_rules() -> Vec<(f64, f64, bool)> {
+    let weight = super::quad::Weight::symmetric(0, 1);
+    let (lo, hi) = (super::quad::rule(weight, RULES.0), super::quad::rule(weight, RULES.1));
+    let mut nodes: Vec<(f64, f64, bool)> = lo.nodes.iter().zip(&lo.weights).map(|(&t, &w)| (t, w, false)).collect();
+    nodes.extend(hi.nodes.iter().zip(&hi.weights).map(|(&t, &w)| (t, w, true)));
+    nodes.sort_by(|a, b| a.0.total_cmp(&b.0));
+    nodes
 }
 
 impl Piece {
@@ -314,17 +327,11 @@ impl Walk<'_> {
     ) -> Result<(Vec<Vec<C64>>, f64, Vec<C64>), PeriodError> {
         crate::limits::check().map_err(|m| PeriodError::Accuracy(m.into()))?;
         let (d, g) = (ys.len(), self.basis.ncols());
-        let weight = super::quad::Weight::symmetric(0, 1);
-        let (lo, hi) = (super::quad::rule(weight, RULES.0), super::quad::rule(weight, RULES.1));
-        // Both rules' nodes in order along the piece, tagged with their weights.
-        let mut nodes: Vec<(f64, f64, bool)> = lo.nodes.iter().zip(&lo.weights).map(|(&t, &w)| (t, w, false)).collect();
-        nodes.extend(hi.nodes.iter().zip(&hi.weights).map(|(&t, &w)| (t, w, true)));
-        nodes.sort_by(|a, b| a.0.total_cmp(&b.0));
         let (mut x, _) = piece.at(-1.0);
         let mut cur = ys.to_vec();
         let mut sums = [vec![vec![C64::new(0.0, 0.0); g]; d], vec![vec![C64::new(0.0, 0.0); g]; d]];
         let mut mono = vec![C64::new(0.0, 0.0); self.monomials.len()];
-        for (t, w, big) in nodes {
+        for &(t, w, big) in self.rule_nodes {
             let (xn, dxdt) = piece.at(t);
             cur = track::continue_to(self.g, x, &cur, xn, &mut self.steps).map_err(PeriodError::Accuracy)?;
             x = xn;
@@ -456,7 +463,15 @@ pub fn periods(poly: &Poly, projective: bool, facts: &CurveFacts, genus: i64) ->
     let b0 = base_point(&critical)?;
     let fibre0 = plane::roots(&plane.fibre(b0));
     let n = critical.len();
-    let mut walk = Walk { g: &plane, monomials: &diffs.monomials, basis: &diffs.basis, steps: 0, nodes: 0 };
+    let rule_nodes = merged_rules();
+    let mut walk = Walk {
+        g: &plane,
+        monomials: &diffs.monomials,
+        basis: &diffs.basis,
+        rule_nodes: &rule_nodes,
+        steps: 0,
+        nodes: 0,
+    };
     let mut sigma = vec![];
     // loop_periods[i][s][monomial], and each loop's error estimate.
     let mut loop_periods = vec![];
