@@ -64,6 +64,7 @@ impl Evaluator<'_> {
         };
         let r = self.riemann_matrix(&c, reduce, ce.span)?;
         let eq = recognise(&c.equation.poly, c.equation.projective)
+            .filter(|s| crate::periods::superelliptic::square_free(&s.f))
             .map(|s| s.describe())
             .unwrap_or_else(|| format!("{} = 0 (by the covering x: curve -> P^1)", c.equation.poly));
         let rows =
@@ -77,7 +78,11 @@ impl Evaluator<'_> {
         reduce: bool,
         span: Span,
     ) -> Result<RiemannMatrix, Fail> {
-        let Some(shape) = recognise(&c.equation.poly, c.equation.projective) else {
+        // y^m = f(x) with a repeated root of f is a singular model: the covering route
+        // resolves its singular points.
+        let Some(shape) = recognise(&c.equation.poly, c.equation.projective)
+            .filter(|s| crate::periods::superelliptic::square_free(&s.f))
+        else {
             return self.general_matrix(c, reduce, span);
         };
         let accuracy = self.checked.settings.accuracy();

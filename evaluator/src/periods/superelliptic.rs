@@ -114,15 +114,19 @@ struct EdgeData {
     errors: Vec<f64>,
 }
 
+/// f has no repeated root: certified mod 2^61 - 1 when possible (an exact gcd over Q of
+/// degree-40 polynomials costs tens of milliseconds of coefficient growth).
+pub fn square_free(f: &UPoly) -> bool {
+    let fd = f.derivative();
+    f.coprime_mod_p(&fd) == Some(true) || f.gcd(&fd).degree() == Some(0)
+}
+
 pub fn periods(m: u32, f: &UPoly, tol: f64) -> Result<Periods, PeriodError> {
     let n = f.degree().unwrap_or(0) as u32;
     if m < 2 || n < 1 {
         return Err(PeriodError::NoMatrix("y^m = f(x) needs m >= 2 and f of degree at least 1".into()));
     }
-    // Square-free: certified mod 2^61 - 1 when possible (an exact gcd over Q of degree-40
-    // polynomials costs tens of milliseconds of coefficient growth).
-    let fd = f.derivative();
-    if f.coprime_mod_p(&fd) != Some(true) && f.gcd(&fd).degree() != Some(0) {
+    if !square_free(f) {
         return Err(PeriodError::Unsupported(format!(
             "f = {} has a repeated root, so the curve is singular there; Riemann matrices of such curves are not supported yet",
             f.show("x")

@@ -104,6 +104,7 @@ fn singular_points(
     g: &Plane,
     critical: &[C64],
     wanted: &std::collections::BTreeMap<u32, usize>,
+    known: &[(C64, C64, u32)],
 ) -> Vec<(C64, C64, u32)> {
     let residual = |x: C64, y: C64, m: usize| -> f64 {
         (0..m)
@@ -160,7 +161,7 @@ fn singular_points(
                 break;
             }
             let close = |a: C64, b: C64| (a - x).norm() + (b - y).norm() < 1e-5 * (1.0 + x.norm() + y.norm());
-            if found.iter().any(|&(a, b, _)| close(a, b)) {
+            if found.iter().chain(known).any(|&(a, b, _)| close(a, b)) {
                 continue;
             }
             found.push((x, y, m));
@@ -168,6 +169,29 @@ fn singular_points(
         }
     }
     found
+}
+
+/// The point with projective coordinates `p` (old coordinates) in the chart Z = 1 of the
+/// new ones, where (old) = change (new): Cramer's rule, exact until the final rounding.
+fn in_chart(change: &[[i64; 3]; 3], p: &[BigRational; 3]) -> Option<(C64, C64)> {
+    let m = |r: usize, c: usize| q(change[r][c]);
+    let det3 = |col: usize, with: Option<&[BigRational; 3]>| -> BigRational {
+        let e = |r: usize, c: usize| match with {
+            Some(v) if c == col => v[r].clone(),
+            _ => m(r, c),
+        };
+        e(0, 0) * (e(1, 1) * e(2, 2) - e(1, 2) * e(2, 1)) - e(0, 1) * (e(1, 0) * e(2, 2) - e(1, 2) * e(2, 0))
+            + e(0, 2) * (e(1, 0) * e(2, 1) - e(1, 1) * e(2, 0))
+    };
+    let det = det3(0, None);
+    if det.is_zero() {
+        return None;
+    }
+    let n: Vec<BigRational> = (0..3).map(|c| det3(c, Some(p)) / &det).collect();
+    if n[2].is_zero() {
+        return None;
+    }
+    Some((C64::new(to_f64(&(&n[0] / &n[2])), 0.0), C64::new(to_f64(&(&n[1] / &n[2])), 0.0)))
 }
 
 /// Newton's method in (x, y) on d^o G / dx^o and d^o G / dy^o.
@@ -440,7 +464,21 @@ pub fn periods(poly: &Poly, projective: bool, facts: &CurveFacts, genus: i64) ->
             *wanted.entry(l.multiplicity).or_insert(0) += p.count;
         }
     }
-    let singular = singular_points(&plane, &critical, &wanted);
+    // Rational singular points are known exactly: their coordinates in the chart are
+    // exact, and only the irrational ones are located numerically (a point of high
+    // multiplicity found from a cluster of fibre roots is off by about eps^(1/m)).
+    let mut singular: Vec<(C64, C64, u32)> = vec![];
+    for p in &facts.rational {
+        if let (Ok(l), Some((x, y))) = (&p.local, in_chart(&change, &p.coords)) {
+            singular.push((x, y, l.multiplicity));
+            if let Some(k) = wanted.get_mut(&l.multiplicity) {
+                *k -= 1;
+            }
+        }
+    }
+    wanted.retain(|_, k| *k > 0);
+    let known = singular.clone();
+    singular.extend(singular_points(&plane, &critical, &wanted, &known));
     if singular.len() != facts.singular_count() {
         return Err(PeriodError::Accuracy(format!(
             "{} singular points found numerically, the exact algebra has {}",
@@ -483,7 +521,9 @@ pub fn periods(poly: &Poly, projective: bool, facts: &CurveFacts, genus: i64) ->
                 r = r.min((bi - bj).norm() / 2.0).min(dist_to_segment(bi, b0, bj));
             }
         }
-        let r = 0.4 * r;
+        // The widest keyhole that still keeps the loops apart: near a singular point the
+        // adjoint differential's rounding is amplified about like r^-(2 delta / m).
+        let r = 0.8 * r;
         let u = (bi - b0) / (bi - b0).norm();
         let p = bi - u * r;
         // The segment in pieces no longer than half their distance to the critical values.

@@ -143,10 +143,14 @@ pub fn conditions(curve: &LocalPoly, p: &LocalPoly, rows: &mut Vec<Vec<C64>>, de
     };
     let h: Vec<C64> = (0..=m).map(|j| curve.get(m - j, j)[0]).collect();
     let roots = super::plane::roots(&h);
-    // Clusters of equal tangents, represented by their centroid (well conditioned).
+    // Clusters of equal tangents, represented by their centroid (well conditioned). A
+    // k-fold root comes out of double arithmetic spread over about eps^(1/k), so the
+    // radius that joins a cluster grows with the multiplicity m (a wrong join shows up as
+    // a delta invariant that disagrees with the exact algebra: an error, not a wrong tau).
+    let radius = 1e-10f64.powf(1.0 / m as f64).max(1e-4);
     let mut clusters: Vec<(C64, usize)> = vec![];
     for r in roots {
-        match clusters.iter_mut().find(|(c, k)| (*c / *k as f64 - r).norm() < 1e-4 * (1.0 + r.norm())) {
+        match clusters.iter_mut().find(|(c, k)| (*c / *k as f64 - r).norm() < radius * (1.0 + r.norm())) {
             Some((c, k)) => {
                 *c += r;
                 *k += 1;
@@ -194,6 +198,10 @@ mod tests {
             (local(&[((0, 2), 1.0), ((2, 1), -2.0), ((4, 0), 1.0), ((5, 0), -1.0)], 6), 2, "(y - x^2)^2 = x^5"),
             // The tacnode turned: (x + 2y)^2 = y^4 has its double tangent off the axes.
             (local(&[((2, 0), 1.0), ((1, 1), 4.0), ((0, 2), 4.0), ((0, 4), -1.0)], 6), 2, "turned tacnode"),
+            (local(&[((0, 7), 1.0), ((2, 0), -1.0)], 7), 3, "A6 y^7 = x^2"),
+            (local(&[((0, 7), 1.0), ((4, 0), -1.0)], 7), 9, "y^7 = x^4"),
+            (local(&[((7, 0), 1.0), ((0, 4), -1.0)], 7), 9, "x^7 = y^4"),
+            (local(&[((7, 0), 1.0), ((0, 2), -1.0)], 7), 3, "x^7 = y^2"),
         ];
         for (curve, want, name) in cases {
             let mut rows = vec![];
