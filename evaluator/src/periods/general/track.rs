@@ -1,15 +1,24 @@
 //! Analytic continuation of the fibre roots of G(x, y) = 0 along a path in the x-plane.
 //!
-//! Each step predicts the roots at the new x with the tangent dy/dx = -G_x / G_y,
-//! corrects them with Newton's method, and accepts the step only if (1) every corrected
-//! root passes Smale's alpha test (alpha = beta gamma < 0.03: Newton converges
-//! quadratically to a root within 2 beta; Blum, Cucker, Shub & Smale, *Complexity and
-//! Real Computation* (1998), ch. 8), (2) the discs of radius 2 beta about the roots are
-//! pairwise disjoint, so they are d distinct roots, and (3) each root moved less than a
-//! third of its distance to the others at the old x, so none can have swapped places
-//! with another. A failing step is halved. This certifies the fibre at every accepted
-//! point; between points the path is covered by the step control (3), not by an
-//! interval bound.
+//! Each step predicts the roots at the new x with the tangent dy/dx = -G_x / G_y and
+//! corrects them with Newton's method. A step from x0 to x1 is accepted only with a
+//! certificate that covers the whole disc |x - x0| <= |x1 - x0|, not just its end points:
+//!
+//! 1. every root y_j at x0 passed Smale's alpha test (alpha = beta gamma < 0.03: an exact
+//!    root lies within 2 beta; Blum, Cucker, Shub & Smale, *Complexity and Real
+//!    Computation* (1998), ch. 8), and the discs D_j of radius rho_j = sep_j / 3 about
+//!    them are pairwise disjoint (sep_j: distance to the nearest other root);
+//! 2. Rouché's theorem on each circle |y - y_j| = rho_j: with G(x0, y) = lc prod (y - exact
+//!    roots), |G(x0, y)| >= L_j = |lc| (rho_j - 2 beta_j) prod_k (|y_j - y_k| - rho_j -
+//!    2 beta_k) there, and |G(x, y) - G(x0, y)| <= U_j, a sum of h^i times bounds on the
+//!    coefficients of (x - x0)^i over the disc (`rouche_upper`), h = |x1 - x0|. If U_j < L_j / 2 (half, for rounding), every x in the disc has
+//!    exactly one root in each D_j: no root can leave its disc or swap with another
+//!    anywhere on the step;
+//! 3. each corrected root at x1 passes the alpha test and its exact root (within 2 beta)
+//!    lies inside its disc D_j, so it is the continuation of y_j.
+//!
+//! A failing step is halved. The bounds are evaluated in double arithmetic with that
+//! factor of two as margin, not in interval arithmetic.
 
 use super::plane::{horner, taylor, Plane};
 use num_complex::Complex64 as C64;
@@ -35,18 +44,54 @@ pub fn separations(ys: &[C64]) -> Vec<f64> {
         .collect()
 }
 
-/// One attempted step from (x0, ys) to x1; `None` when it is not certified.
-fn attempt(g: &Plane, x0: C64, ys: &[C64], x1: C64) -> Option<Vec<C64>> {
+/// Rouché bound U_j for each root: sum over i >= 1 of h^i max |b_i(y)| on |y - y_j| <= rho_j,
+/// b_i(y) the coefficient of (x - x0)^i. For i = 1 (G_x, the leading term) the maximum is
+/// bounded by the Taylor coefficients at y_j, so G_x's own size enters and not the sum of
+/// its terms' sizes; for i >= 2, which carry h^2 or less, by |coefficients| at |y_j| + rho_j.
+fn rouche_upper(g: &Plane, x0: C64, ys: &[C64], h: f64, rho: &[f64]) -> Vec<f64> {
+    let shifted: Vec<Vec<C64>> = g.c.iter().map(|row| taylor(row, x0)).collect();
+    let b = |i: usize| -> Vec<C64> { shifted.iter().map(|t| t.get(i).copied().unwrap_or_default()).collect() };
+    let b1 = b(1);
+    let higher: Vec<Vec<f64>> = (2..=g.d).map(|i| b(i).iter().map(|c| c.norm()).collect()).collect();
+    ys.iter()
+        .zip(rho)
+        .map(|(&y, &r)| {
+            let first = taylor(&b1, y).iter().rev().fold(0.0, |s, a| s * r + a.norm()) * h;
+            let big = y.norm() + r;
+            let rest =
+                higher.iter().rev().fold(0.0, |acc, bi| (acc + bi.iter().rev().fold(0.0, |s, a| s * big + a)) * h);
+            first + rest * h
+        })
+        .collect()
+}
+
+/// One attempted step from (x0, ys) with alpha-certified radii `betas` to x1; the new
+/// roots and their betas, or `None` when the step is not certified.
+fn attempt(g: &Plane, x0: C64, ys: &[C64], betas: &[f64], x1: C64) -> Option<(Vec<C64>, Vec<f64>)> {
     let (p0, p0x) = (g.fibre(x0), g.fibre_dx(x0));
     let p1 = g.fibre(x1);
     let sep = separations(ys);
+    let rho: Vec<f64> = sep.iter().map(|s| s / 3.0).collect();
     let h = x1 - x0;
+    // Rouché on each circle |y - y_j| = rho_j, for every x with |x - x0| <= |h|.
+    let lc = p0.last().map_or(0.0, |c| c.norm());
+    let upper = rouche_upper(g, x0, ys, h.norm(), &rho);
+    for j in 0..ys.len() {
+        let mut lower = lc * (rho[j] - 2.0 * betas[j]);
+        for k in 0..ys.len() {
+            if k != j {
+                lower *= (ys[j] - ys[k]).norm() - rho[j] - 2.0 * betas[k];
+            }
+        }
+        if !(lower > 0.0 && upper[j] < 0.5 * lower) {
+            return None;
+        }
+    }
     let mut out = Vec::with_capacity(ys.len());
-    for (j, &y) in ys.iter().enumerate() {
+    for &y in ys {
         let (_, gy) = horner(&p0, y);
         let (gx, _) = horner(&p0x, y);
-        let pred = y - h * gx / gy;
-        let mut z = pred;
+        let mut z = y - h * gx / gy;
         for _ in 0..6 {
             let (v, dv) = horner(&p1, z);
             if dv.norm() == 0.0 {
@@ -58,39 +103,55 @@ fn attempt(g: &Plane, x0: C64, ys: &[C64], x1: C64) -> Option<Vec<C64>> {
                 break;
             }
         }
-        if !z.re.is_finite() || !z.im.is_finite() || (z - y).norm() >= sep[j] / 3.0 || (z - pred).norm() >= sep[j] / 8.0
-        {
+        if !z.re.is_finite() || !z.im.is_finite() {
             return None;
         }
         out.push(z);
     }
     let ab: Vec<(f64, f64)> = out.iter().map(|&z| alpha_beta(&p1, z)).collect();
-    if ab.iter().any(|&(a, _)| !(a < ALPHA_MAX)) {
-        return None;
-    }
     for j in 0..out.len() {
-        for k in j + 1..out.len() {
-            if (out[j] - out[k]).norm() <= 2.0 * (ab[j].1 + ab[k].1) {
-                return None;
+        // The exact root near out[j] lies in y_j's disc: it is y_j continued.
+        if !(ab[j].0 < ALPHA_MAX) || (out[j] - ys[j]).norm() + 2.0 * ab[j].1 >= rho[j] {
+            return None;
+        }
+    }
+    Some((out, ab.into_iter().map(|(_, b)| b).collect()))
+}
+
+/// Certified radii (2 beta) of the roots `ys` of the fibre over x, or an error when the
+/// alpha test fails for one of them or two of their discs meet.
+fn certify(g: &Plane, x: C64, ys: &[C64]) -> Result<Vec<f64>, String> {
+    let p = g.fibre(x);
+    let ab: Vec<(f64, f64)> = ys.iter().map(|&y| alpha_beta(&p, y)).collect();
+    let bad = || format!("the fibre over x = {:.6} {:+.6}i could not be certified (roots too close)", x.re, x.im);
+    if ab.iter().any(|&(a, _)| !(a < ALPHA_MAX)) {
+        return Err(bad());
+    }
+    for j in 0..ys.len() {
+        for k in j + 1..ys.len() {
+            if (ys[j] - ys[k]).norm() <= 2.0 * (ab[j].1 + ab[k].1) {
+                return Err(bad());
             }
         }
     }
-    Some(out)
+    Ok(ab.into_iter().map(|(_, b)| b).collect())
 }
 
 /// Continues `ys` (the fibre over x0, in sheet order) to x1, keeping the order.
 pub fn continue_to(g: &Plane, x0: C64, ys: &[C64], x1: C64, steps: &mut usize) -> Result<Vec<C64>, String> {
     let mut x = x0;
     let mut cur = ys.to_vec();
+    let mut betas = certify(g, x0, ys)?;
     let mut frac = 1.0f64;
     let total = x1 - x0;
     let mut done = 0.0f64;
     while done < 1.0 {
         let take = frac.min(1.0 - done);
         let next = if done + take >= 1.0 { x1 } else { x0 + total * (done + take) };
-        match attempt(g, x, &cur, next) {
-            Some(v) => {
+        match attempt(g, x, &cur, &betas, next) {
+            Some((v, b)) => {
                 cur = v;
+                betas = b;
                 x = next;
                 done += take;
                 *steps += 1;
