@@ -353,11 +353,15 @@ impl Walk<'_> {
         let (d, g) = (ys.len(), self.basis.ncols());
         let (mut x, _) = piece.at(-1.0);
         let mut cur = ys.to_vec();
+        // The certified radii of `cur`, passed from one node's continuation to the next.
+        let mut betas: Option<Vec<f64>> = None;
         let mut sums = [vec![vec![C64::new(0.0, 0.0); g]; d], vec![vec![C64::new(0.0, 0.0); g]; d]];
         let mut mono = vec![C64::new(0.0, 0.0); self.monomials.len()];
         for &(t, w, big) in self.rule_nodes {
             let (xn, dxdt) = piece.at(t);
-            cur = track::continue_to(self.g, x, &cur, xn, &mut self.steps).map_err(PeriodError::Accuracy)?;
+            let (c, b) = track::continue_to(self.g, x, &cur, betas.take(), xn, &mut self.steps)
+                .map_err(PeriodError::Accuracy)?;
+            (cur, betas) = (c, Some(b));
             x = xn;
             self.nodes += 1;
             for (s, &y) in cur.iter().enumerate() {
@@ -373,7 +377,7 @@ impl Walk<'_> {
             }
         }
         let (xe, _) = piece.at(1.0);
-        cur = track::continue_to(self.g, x, &cur, xe, &mut self.steps).map_err(PeriodError::Accuracy)?;
+        cur = track::continue_to(self.g, x, &cur, betas, xe, &mut self.steps).map_err(PeriodError::Accuracy)?.0;
         let mut diff = 0.0f64;
         let mut size = 0.0f64;
         for s in 0..d {

@@ -137,11 +137,22 @@ fn certify(g: &Plane, x: C64, ys: &[C64]) -> Result<Vec<f64>, String> {
     Ok(ab.into_iter().map(|(_, b)| b).collect())
 }
 
-/// Continues `ys` (the fibre over x0, in sheet order) to x1, keeping the order.
-pub fn continue_to(g: &Plane, x0: C64, ys: &[C64], x1: C64, steps: &mut usize) -> Result<Vec<C64>, String> {
+/// Continues `ys` (the fibre over x0, in sheet order) to x1, keeping the order; returns the
+/// roots with their certified radii. `betas`: those radii when the previous call gave them.
+pub fn continue_to(
+    g: &Plane,
+    x0: C64,
+    ys: &[C64],
+    betas: Option<Vec<f64>>,
+    x1: C64,
+    steps: &mut usize,
+) -> Result<(Vec<C64>, Vec<f64>), String> {
     let mut x = x0;
     let mut cur = ys.to_vec();
-    let mut betas = certify(g, x0, ys)?;
+    let mut betas = match betas {
+        Some(b) => b,
+        None => certify(g, x0, ys)?,
+    };
     let mut frac = 1.0f64;
     let total = x1 - x0;
     let mut done = 0.0f64;
@@ -168,5 +179,5 @@ pub fn continue_to(g: &Plane, x0: C64, ys: &[C64], x1: C64, steps: &mut usize) -
             }
         }
     }
-    Ok(cur)
+    Ok((cur, betas))
 }
