@@ -4,7 +4,7 @@
 
 use crate::eval::{fail, Evaluator, Fail};
 use crate::num::Num;
-use crate::periods::shape::recognise;
+use crate::periods::shape::superelliptic_route;
 use crate::periods::superelliptic::superelliptic_genus;
 use crate::periods::{riemann_matrix, PeriodError, RiemannMatrix};
 use crate::value::{CurveValue, Value, Valued};
@@ -63,8 +63,7 @@ impl Evaluator<'_> {
             return Err(fail(Code::WrongKind, ce.span, "`tau` needs a curve"));
         };
         let r = self.riemann_matrix(&c, reduce, ce.span)?;
-        let eq = recognise(&c.equation.poly, c.equation.projective)
-            .filter(|s| crate::periods::superelliptic::square_free(&s.f))
+        let eq = superelliptic_route(&c.equation.poly, c.equation.projective)
             .map(|s| s.describe())
             .unwrap_or_else(|| format!("{} = 0 (by the covering x: curve -> P^1)", c.equation.poly));
         let rows =
@@ -78,11 +77,7 @@ impl Evaluator<'_> {
         reduce: bool,
         span: Span,
     ) -> Result<RiemannMatrix, Fail> {
-        // y^m = f(x) with a repeated root of f is a singular model: the covering route
-        // resolves its singular points.
-        let Some(shape) = recognise(&c.equation.poly, c.equation.projective)
-            .filter(|s| crate::periods::superelliptic::square_free(&s.f))
-        else {
+        let Some(shape) = superelliptic_route(&c.equation.poly, c.equation.projective) else {
             return self.general_matrix(c, reduce, span);
         };
         let accuracy = self.checked.settings.accuracy();

@@ -3,7 +3,7 @@
 
 use crate::eval::{fail, Evaluator, Fail};
 use crate::num::Num;
-use crate::periods::shape::recognise;
+use crate::periods::shape::superelliptic_route;
 use crate::theta::ThetaContext;
 use crate::value::{Value, Valued};
 use crate::waves::krichever::Place;
@@ -347,7 +347,7 @@ impl Evaluator<'_> {
             Given::Finite(x, y) => (x, y),
             Given::AtInfinity(..) => (C64::new(f64::INFINITY, 0.0), C64::new(f64::INFINITY, 0.0)),
         };
-        let Some(shape) = recognise(&c.equation.poly, c.equation.projective) else {
+        let Some(shape) = superelliptic_route(&c.equation.poly, c.equation.projective) else {
             // A finite point in the chart z = 1, a point at infinity in the chart of its
             // largest coordinate.
             let (chart, u0, v0) = match given {

@@ -25,6 +25,13 @@ impl Superelliptic {
     }
 }
 
+/// The curve's y^m = f(x) form when the superelliptic route applies to it (f square-free);
+/// `None` sends `tau` and `krichever` to the covering route, which also resolves the
+/// singular models y^m = f(x) with a repeated root of f.
+pub fn superelliptic_route(poly: &Poly, projective: bool) -> Option<Superelliptic> {
+    recognise(poly, projective).filter(|s| super::superelliptic::square_free(&s.f))
+}
+
 pub fn recognise(poly: &Poly, projective: bool) -> Option<Superelliptic> {
     // Affine terms (x power, y power) -> coefficient, after z = 1.
     let mut affine: BTreeMap<(u32, u32), BigRational> = BTreeMap::new();
