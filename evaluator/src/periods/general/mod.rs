@@ -359,9 +359,9 @@ impl Walk<'_> {
         let mut mono = vec![C64::new(0.0, 0.0); self.monomials.len()];
         for &(t, w, big) in self.rule_nodes {
             let (xn, dxdt) = piece.at(t);
-            let (c, b) = track::continue_to(self.g, x, &cur, betas.take(), xn, &mut self.steps)
+            let (c, k) = track::continue_to(self.g, x, &cur, betas.take(), xn, &mut self.steps)
                 .map_err(PeriodError::Accuracy)?;
-            (cur, betas) = (c, Some(b));
+            (cur, betas) = (c, Some(k));
             x = xn;
             self.nodes += 1;
             for (s, &y) in cur.iter().enumerate() {

@@ -8,14 +8,20 @@
 //!    root lies within 2 beta; Blum, Cucker, Shub & Smale, *Complexity and Real
 //!    Computation* (1998), ch. 8), and the discs D_j of radius rho_j = sep_j / 3 about
 //!    them are pairwise disjoint (sep_j: distance to the nearest other root);
-//! 2. Rouché's theorem on each circle |y - y_j| = rho_j: with G(x0, y) = lc prod (y - exact
-//!    roots), |G(x0, y)| >= L_j = |lc| (rho_j - 2 beta_j) prod_k (|y_j - y_k| - rho_j -
-//!    2 beta_k) there, and |G(x, y) - G(x0, y)| <= U_j, a sum of h^i times bounds on the
-//!    coefficients of (x - x0)^i over the disc (`rouche_upper`), h = |x1 - x0|. If U_j < L_j / 2 (half, for rounding), every x in the disc has
-//!    exactly one root in each D_j: no root can leave its disc or swap with another
+//! 2. Rouché's theorem on a circle of radius rho_j about each root, for every x = x0 + s
+//!    with |s| <= h = |x1 - x0|. The reference is G(x0, y) itself (a fixed disc) or,
+//!    where that bound is too weak, G(x0, y - s v_j) with v_j = -G_x / G_y, the fibre
+//!    shifted along the root's tangent (a disc moving with the root, so the first-order
+//!    change cancels; near a singular point this allows steps several times longer).
+//!    Either reference is lc prod (y - exact roots) up to that shift, so on the circle
+//!    it is at least L_j = |lc| (rho_j - 2 beta_j) prod_k (|y_j - y_k| - rho_j - 2 beta_k);
+//!    the difference from G(x0 + s, y) is at most U_j, a sum over Taylor coefficients at
+//!    (x0, y_j) times h^i R^k (`Rouche`). U_j < L_j / 2 (half, for rounding), and the
+//!    discs staying pairwise disjoint for every s, mean that every x in the disc has
+//!    exactly one root in each disc: no root can leave its disc or swap with another
 //!    anywhere on the step;
 //! 3. each corrected root at x1 passes the alpha test and its exact root (within 2 beta)
-//!    lies inside its disc D_j, so it is the continuation of y_j.
+//!    lies inside its disc at x1, so it is the continuation of y_j.
 //!
 //! A failing step is halved. The bounds are evaluated in double arithmetic with that
 //! factor of two as margin, not in interval arithmetic.
@@ -44,25 +50,58 @@ pub fn separations(ys: &[C64]) -> Vec<f64> {
         .collect()
 }
 
-/// Rouché bound U_j for each root: sum over i >= 1 of h^i max |b_i(y)| on |y - y_j| <= rho_j,
-/// b_i(y) the coefficient of (x - x0)^i. For i = 1 (G_x, the leading term) the maximum is
-/// bounded by the Taylor coefficients at y_j, so G_x's own size enters and not the sum of
-/// its terms' sizes; for i >= 2, which carry h^2 or less, by |coefficients| at |y_j| + rho_j.
-fn rouche_upper(g: &Plane, x0: C64, ys: &[C64], h: f64, rho: &[f64]) -> Vec<f64> {
-    let shifted: Vec<Vec<C64>> = g.c.iter().map(|row| taylor(row, x0)).collect();
-    let b = |i: usize| -> Vec<C64> { shifted.iter().map(|t| t.get(i).copied().unwrap_or_default()).collect() };
-    let b1 = b(1);
-    let higher: Vec<Vec<f64>> = (2..=g.d).map(|i| b(i).iter().map(|c| c.norm()).collect()).collect();
-    ys.iter()
-        .zip(rho)
-        .map(|(&y, &r)| {
-            let first = taylor(&b1, y).iter().rev().fold(0.0, |s, a| s * r + a.norm()) * h;
-            let big = y.norm() + r;
-            let rest =
-                higher.iter().rev().fold(0.0, |acc, bi| (acc + bi.iter().rev().fold(0.0, |s, a| s * big + a)) * h);
-            first + rest * h
-        })
-        .collect()
+/// Rouché upper bounds on the change of G over |x - x0| <= h near each root. b_i(y) is
+/// the coefficient of (x - x0)^i, a polynomial in y.
+struct Rouche {
+    /// b_i for i = 0..=d.
+    b: Vec<Vec<C64>>,
+    h: f64,
+}
+
+/// sum over k of |c_k| r^k.
+fn modulus_sum(c: &[C64], r: f64) -> f64 {
+    c.iter().rev().fold(0.0, |s, a| s * r + a.norm())
+}
+
+impl Rouche {
+    fn new(g: &Plane, x0: C64, h: f64) -> Rouche {
+        let shifted: Vec<Vec<C64>> = g.c.iter().map(|row| taylor(row, x0)).collect();
+        let b = (0..=g.d).map(|i| shifted.iter().map(|t| t.get(i).copied().unwrap_or_default()).collect()).collect();
+        Rouche { b, h }
+    }
+
+    /// Fixed disc, cheap: |G(x, y) - G(x0, y)| for |y - y_j| <= rho, with b_1 = G_x
+    /// bounded by its Taylor coefficients at y (so G_x's own size enters, not the sum of
+    /// its terms' sizes) and the terms carrying h^2 or less by |coefficients| at |y| + rho.
+    fn fixed(&self, y: C64, rho: f64) -> f64 {
+        let big = y.norm() + rho;
+        let rest = self.b[2..].iter().rev().fold(0.0, |acc, bi| (acc + modulus_sum(bi, big)) * self.h);
+        (modulus_sum(&taylor(&self.b[1], y), rho) + rest) * self.h
+    }
+
+    /// Moving disc: |G(x0 + s, y) - G(x0, y - s v)| for |s| <= h, |y - y_j| <= rho + h |v|.
+    /// With a_ik the Taylor coefficients of G at (x0, y_j), the difference has the
+    /// coefficients a_ik - C(i + k, i) (-v)^i a_0,i+k of s^i w^k (none for i = 0).
+    fn moving(&self, y: C64, v: C64, rho: f64) -> f64 {
+        let a: Vec<Vec<C64>> = self.b.iter().map(|bi| taylor(bi, y)).collect();
+        let r = rho + self.h * v.norm();
+        let mut total = 0.0;
+        let mut hi = 1.0;
+        let mut minus_v_i = C64::new(1.0, 0.0);
+        for i in 1..a.len() {
+            hi *= self.h;
+            minus_v_i *= -v;
+            let mut binom = 1.0; // C(i + k, i), k = 0
+            let mut rk = 1.0;
+            for k in 0..a[i].len() {
+                let shifted = a[0].get(i + k).map_or(C64::new(0.0, 0.0), |c| c * minus_v_i * binom);
+                total += hi * rk * (a[i][k] - shifted).norm();
+                rk *= r;
+                binom *= (i + k + 1) as f64 / (k + 1) as f64;
+            }
+        }
+        total
+    }
 }
 
 /// One attempted step from (x0, ys) with alpha-certified radii `betas` to x1; the new
@@ -73,25 +112,44 @@ fn attempt(g: &Plane, x0: C64, ys: &[C64], betas: &[f64], x1: C64) -> Option<(Ve
     let sep = separations(ys);
     let rho: Vec<f64> = sep.iter().map(|s| s / 3.0).collect();
     let h = x1 - x0;
-    // Rouché on each circle |y - y_j| = rho_j, for every x with |x - x0| <= |h|.
+    // Each root's tangent, and the velocity of its disc's centre: 0 for a fixed disc.
     let lc = p0.last().map_or(0.0, |c| c.norm());
-    let upper = rouche_upper(g, x0, ys, h.norm(), &rho);
-    for j in 0..ys.len() {
+    let rouche = Rouche::new(g, x0, h.norm());
+    let mut tangent = Vec::with_capacity(ys.len());
+    let mut centre = Vec::with_capacity(ys.len());
+    for (j, &y) in ys.iter().enumerate() {
+        let (_, gy) = horner(&p0, y);
+        let (gx, _) = horner(&p0x, y);
+        let v = -gx / gy;
+        tangent.push(v);
         let mut lower = lc * (rho[j] - 2.0 * betas[j]);
         for k in 0..ys.len() {
             if k != j {
                 lower *= (ys[j] - ys[k]).norm() - rho[j] - 2.0 * betas[k];
             }
         }
-        if !(lower > 0.0 && upper[j] < 0.5 * lower) {
+        if !(lower > 0.0 && v.re.is_finite() && v.im.is_finite()) {
+            return None;
+        }
+        if rouche.fixed(y, rho[j]) < 0.5 * lower {
+            centre.push(C64::new(0.0, 0.0));
+        } else if rouche.moving(y, v, rho[j]) < 0.5 * lower {
+            centre.push(v);
+        } else {
             return None;
         }
     }
+    // The discs stay apart for every x in the step.
+    for j in 0..ys.len() {
+        for k in j + 1..ys.len() {
+            if (ys[j] - ys[k]).norm() - h.norm() * (centre[j] - centre[k]).norm() <= rho[j] + rho[k] {
+                return None;
+            }
+        }
+    }
     let mut out = Vec::with_capacity(ys.len());
-    for &y in ys {
-        let (_, gy) = horner(&p0, y);
-        let (gx, _) = horner(&p0x, y);
-        let mut z = y - h * gx / gy;
+    for (&y, &v) in ys.iter().zip(&tangent) {
+        let mut z = y + h * v;
         for _ in 0..6 {
             let (v, dv) = horner(&p1, z);
             if dv.norm() == 0.0 {
@@ -111,7 +169,7 @@ fn attempt(g: &Plane, x0: C64, ys: &[C64], betas: &[f64], x1: C64) -> Option<(Ve
     let ab: Vec<(f64, f64)> = out.iter().map(|&z| alpha_beta(&p1, z)).collect();
     for j in 0..out.len() {
         // The exact root near out[j] lies in y_j's disc: it is y_j continued.
-        if !(ab[j].0 < ALPHA_MAX) || (out[j] - ys[j]).norm() + 2.0 * ab[j].1 >= rho[j] {
+        if !(ab[j].0 < ALPHA_MAX) || (out[j] - ys[j] - h * centre[j]).norm() + 2.0 * ab[j].1 >= rho[j] {
             return None;
         }
     }
