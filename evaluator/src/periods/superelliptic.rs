@@ -128,7 +128,7 @@ pub fn periods(m: u32, f: &UPoly, tol: f64) -> Result<Periods, PeriodError> {
     }
     if !square_free(f) {
         return Err(PeriodError::Unsupported(format!(
-            "f = {} has a repeated root, so the curve is singular there; Riemann matrices of such curves are not supported yet",
+            "f = {} has a repeated root, so the curve is singular there; this route needs f square-free (`superelliptic_route` sends such models to the covering route)",
             f.show("x")
         )));
     }
