@@ -262,10 +262,10 @@ impl Evaluator<'_> {
                 .map_err(|m| fail(Code::NumberTooLarge, e.span, m)),
             ExprKind::Imag(t) => {
                 let q = parse_exact(t).map_err(|m| fail(Code::NumberTooLarge, e.span, m))?;
-                Ok(Valued::exact(Value::Num(Num::Complex(num_complex::Complex64::new(
-                    0.0,
-                    kelp_lang::number::to_f64(&q),
-                )))))
+                // The literal is exact; its float carries the conversion's rounding.
+                let error_bound = Num::Exact(q.clone()).conversion_error();
+                let value = Value::Num(Num::Complex(num_complex::Complex64::new(0.0, kelp_lang::number::to_f64(&q))));
+                Ok(Valued { value, error_bound, reason: None })
             }
             ExprKind::Bool(b) => Ok(Valued::exact(Value::Bool(*b))),
             ExprKind::Str(s) => Ok(Valued::exact(Value::Str(s.clone()))),
@@ -390,7 +390,8 @@ impl Evaluator<'_> {
                     "re" => n.re(),
                     _ => n.im(),
                 };
-                Ok(Valued { value: Value::Num(r), ..v })
+                let error_bound = crate::rounding::abs_error(&v, &r);
+                Ok(Valued { value: Value::Num(r), error_bound, ..v })
             }
             "is_riemann" => {
                 let v = first(self)?;
@@ -502,7 +503,14 @@ fn compare(op: BinOp, l: &Valued, r: &Valued, tol: f64, span: Span) -> Result<De
                     if ea.iter().chain(eb.iter()).all(|n| n.is_exact()) {
                         Decision { holds: Some(ea == eb), distance: None }
                     } else {
-                        let dist = ea.iter().zip(&eb).map(|(x, y)| x.distance(y)).fold(0.0, f64::max);
+                        // Each entry's distance is itself computed in floating point.
+                        let (mut dist, mut slack) = (0.0f64, 0.0f64);
+                        for (x, y) in ea.iter().zip(&eb) {
+                            let d = x.distance(y);
+                            dist = dist.max(d);
+                            slack = slack.max(crate::rounding::distance_slack(x, y, d));
+                        }
+                        let err = err + slack;
                         let holds = if dist + err <= tol {
                             Some(true)
                         } else if dist - err > tol {
@@ -528,27 +536,29 @@ fn compare(op: BinOp, l: &Valued, r: &Valued, tol: f64, span: Span) -> Result<De
                     _ => x >= y,
                 }),
                 _ => {
-                    let (Some(x), Some(y)) = (a.to_real(), b.to_real()) else {
+                    let (Some(x), Some(y)) = (a.to_rational(), b.to_rational()) else {
                         return Err(fail(
                             Code::WrongKind,
                             span,
                             "complex numbers have no order; compare `abs(...)`, `re(...)` or `im(...)`",
                         ));
                     };
-                    // (y - x) decides `<` when it clears the error bounds.
+                    // (y - x) decides `<` when it clears the error bounds; floats are binary
+                    // fractions, so the gap is computed exactly.
                     let gap = match op {
                         BinOp::Lt | BinOp::Le => y - x,
                         _ => x - y,
                     };
-                    if gap > err {
-                        Some(true)
-                    } else if gap < -err {
-                        Some(false)
-                    } else if err == 0.0 {
-                        // gap is exactly 0: equal values.
-                        Some(matches!(op, BinOp::Le | BinOp::Ge))
-                    } else {
-                        None
+                    let err = num_rational::BigRational::from_float(err);
+                    match err {
+                        None => None,
+                        Some(err) if gap > err => Some(true),
+                        Some(err) if gap < -err.clone() => Some(false),
+                        Some(err) if num_traits::Zero::is_zero(&err) => {
+                            // gap is exactly 0: equal values.
+                            Some(matches!(op, BinOp::Le | BinOp::Ge))
+                        }
+                        Some(_) => None,
                     }
                 }
             };
@@ -558,7 +568,6 @@ fn compare(op: BinOp, l: &Valued, r: &Valued, tol: f64, span: Span) -> Result<De
 }
 
 fn arith(op: BinOp, l: &Valued, r: &Valued, span: Span) -> R {
-    let err = propagate(op, l, r);
     let bad = || {
         fail(
             Code::WrongKind,
@@ -623,25 +632,10 @@ fn arith(op: BinOp, l: &Valued, r: &Valued, span: Span) -> R {
         }
         _ => return Err(bad()),
     };
+    let err = crate::rounding::arith_error(op, l, r, &value);
     Ok(Valued { value, error_bound: err, reason: None })
 }
 
 fn dot<'a>(row: &[Num], col: impl Iterator<Item = &'a Num>) -> Num {
     row.iter().zip(col).fold(Num::int(0), |acc, (a, b)| acc.add(&a.mul(b)))
-}
-
-/// First-order propagation of error bounds through arithmetic.
-fn propagate(op: BinOp, l: &Valued, r: &Valued) -> f64 {
-    if l.error_bound == 0.0 && r.error_bound == 0.0 {
-        return 0.0;
-    }
-    let size = |v: &Value| entries(v).map_or(0.0, |(_, e)| e.iter().map(|n| n.to_complex().norm()).fold(0.0, f64::max));
-    let (a, b) = (size(&l.value), size(&r.value));
-    let (ea, eb) = (l.error_bound, r.error_bound);
-    match op {
-        BinOp::Add | BinOp::Sub => ea + eb,
-        BinOp::Mul => a * eb + b * ea + ea * eb,
-        BinOp::Div if b > eb => (ea + a * eb / b) / (b - eb),
-        _ => f64::INFINITY,
-    }
 }

@@ -12,6 +12,7 @@ mod memo;
 pub mod num;
 pub mod output;
 pub mod periods;
+pub mod rounding;
 mod tau_fn;
 pub mod theta;
 mod theta_fn;

@@ -150,7 +150,45 @@ impl Num {
     pub fn distance(&self, o: &Num) -> f64 {
         (self.to_complex() - o.to_complex()).norm()
     }
+
+    /// A bound on |float value - exact value| that converting this number to floating
+    /// point introduces: 0 for floats (they are what they are); for rationals the exact
+    /// difference, rounded up.
+    pub fn conversion_error(&self) -> f64 {
+        match self {
+            Num::Exact(q) => {
+                let f = to_f64(q);
+                match BigRational::from_float(f) {
+                    // The exact difference, rounded up.
+                    Some(back) => to_f64(&(back - q).abs()) * (1.0 + 4.0 * UNIT_ROUNDOFF),
+                    None => f64::INFINITY,
+                }
+            }
+            _ => 0.0,
+        }
+    }
+
+    /// The exact rational value of a real number (floats are binary fractions).
+    pub fn to_rational(&self) -> Option<BigRational> {
+        match self {
+            Num::Exact(q) => Some(q.clone()),
+            Num::Real(r) => BigRational::from_float(*r),
+            Num::Complex(c) if c.im == 0.0 => BigRational::from_float(c.re),
+            Num::Complex(_) => None,
+        }
+    }
+
+    /// The modulus as a float (rounded up by one unit for complex numbers).
+    pub fn magnitude(&self) -> f64 {
+        match self {
+            Num::Complex(c) => c.norm() * (1.0 + UNIT_ROUNDOFF),
+            other => other.to_complex().re.abs(),
+        }
+    }
 }
+
+/// u = 2^-53, the unit roundoff of binary64 with rounding to nearest.
+pub const UNIT_ROUNDOFF: f64 = f64::EPSILON / 2.0;
 
 /// Shortest round-tripping decimal of a float, without a trailing ".0" on integers
 /// too large to read.

@@ -91,12 +91,21 @@ impl Evaluator<'_> {
         }
         let tm = nalgebra::DMatrix::from_fn(n, n, |i, j| t[i][j]);
         let tol = self.checked.settings.tolerance() + tv.error_bound;
-        let ctx = ThetaContext::new(&tm, tol).map_err(|e| theta_error(e, te.span))?;
         // Aim well below both the requested accuracy and the claim tolerance, so that a
         // claim `== ... within tolerance` is decided rather than left open; the extra
         // lattice points cost little (the radius grows like sqrt(log(1/accuracy))).
         let s = &self.checked.settings;
         let accuracy = (s.accuracy().min(s.tolerance()) * 1e-3).max(1e-17);
+        if along.is_empty() {
+            // Small Im tau in genus 1: the modular transformation, which carries the
+            // inputs' errors itself.
+            let transformed =
+                crate::theta::value_with_inputs(&tm, &z, ch.as_ref(), tv.error_bound, zv.error_bound, accuracy);
+            if let Some(v) = transformed {
+                return self.theta_result(v.map_err(|e| theta_error(e, te.span))?, 0.0, span);
+            }
+        }
+        let ctx = ThetaContext::new(&tm, tol).map_err(|e| theta_error(e, te.span))?;
         // One pass computes the value and, when T or z carry errors, the derivatives that
         // propagate them: |d theta / d z_j| for z, |d theta / d tau_jk| = |d^2 theta /
         // dz_j dz_k| / (2 pi (1 + delta_jk)) for T (heat equation).
@@ -129,19 +138,8 @@ impl Evaluator<'_> {
         }
         let (vals, _) = ctx.sums(&z, ch.as_ref(), &dirs, &monos, accuracy).map_err(|e| theta_error(e, span))?;
         let v = vals[0];
-        if v.log_factor > 700.0 {
-            return Err(fail(
-                Code::EvalFailed,
-                span,
-                format!(
-                    "the theta value is about e^{:.0} and does not fit in double precision; \
-                     use a z with a smaller imaginary part (theta is quasi-periodic)",
-                    v.log_factor + v.value.norm().ln()
-                ),
-            ));
-        }
         let scale = v.log_factor.exp();
-        let mut err = v.full_error();
+        let mut err = 0.0;
         if zv.error_bound > 0.0 {
             err += vals[1..first_tau].iter().map(|d| (d.value.norm() + d.error) * scale).sum::<f64>() * zv.error_bound;
         }
@@ -156,6 +154,23 @@ impl Evaluator<'_> {
                 }
             }
         }
+        self.theta_result(v, err, span)
+    }
+
+    /// The value of a theta call, with `extra` added to its own bound (the inputs' errors).
+    fn theta_result(&self, v: crate::theta::ThetaValue, extra: f64, span: Span) -> Result<Valued, Fail> {
+        if v.log_factor > 700.0 {
+            return Err(fail(
+                Code::EvalFailed,
+                span,
+                format!(
+                    "the theta value is about e^{:.0} and does not fit in double precision; \
+                     use a z with a smaller imaginary part (theta is quasi-periodic)",
+                    v.log_factor + v.value.norm().ln()
+                ),
+            ));
+        }
+        let err = v.full_error() + extra;
         let value = v.full();
         Ok(Valued { value: Value::Num(Num::Complex(value)), error_bound: err, reason: None })
     }

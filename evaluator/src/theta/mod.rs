@@ -14,7 +14,9 @@
 
 pub mod bench_cases;
 pub mod bound;
+pub mod genus1;
 pub mod lattice;
+mod rounding;
 pub mod siegel;
 mod sum;
 
@@ -22,6 +24,8 @@ use bound::TailInput;
 use nalgebra::{DMatrix, DVector, SymmetricEigen};
 use num_complex::Complex64 as C64;
 use std::f64::consts::PI;
+
+const U: f64 = f64::EPSILON / 2.0;
 
 /// Radius of the exponential tables built with a context (see `sum`).
 const TABLE_RADIUS: f64 = 9.0;
@@ -144,9 +148,15 @@ pub struct ThetaContext {
     c: DMatrix<f64>,
     gammas: Vec<f64>,
     kappa: f64,
-    /// ||Y||_2 * ||Y^-1||_2 and ||Y||_2, for the rounding estimate.
-    cond: f64,
-    ynorm: f64,
+    /// Sizes for the rounding bound (see `rounding.rs`): ||C||_F ||C^-1||_2, the
+    /// Cholesky backward error in units of u, ||C^-1||_2 (bounded by the Frobenius norm),
+    /// ||Y||_F, ||C||_F and ||U^-1||_F.
+    kappa_c: f64,
+    chol_err: f64,
+    cinv_norm: f64,
+    y_frob: f64,
+    c_frob: f64,
+    uinv_frob: f64,
     /// tau' = U^T tau U, the diagonal of (Y')^-1, and the exponential tables of tau'.
     taur: DMatrix<C64>,
     yred_inv_diag: Vec<f64>,
@@ -191,7 +201,7 @@ impl ThetaContext {
         let re = tau.map(|v| v.re);
         let y = tau.map(|v| v.im);
         let eig = SymmetricEigen::new(y.clone()).eigenvalues;
-        let (lo, hi) = eig.iter().fold((f64::INFINITY, 0.0f64), |(a, b), &e| (a.min(e), b.max(e)));
+        let lo = eig.iter().fold(f64::INFINITY, |a, &e| a.min(e));
         if lo <= 0.0 || y.clone().cholesky().is_none() {
             return Err(ThetaError::NotPositiveDefinite { smallest: lo });
         }
@@ -201,7 +211,21 @@ impl ThetaContext {
         let uf = u.map(|v| v as f64);
         let yred = uf.transpose() * &y * &uf;
         let c = lattice::upper_cholesky(&yred, PI).ok_or(ThetaError::NotPositiveDefinite { smallest: lo })?;
-        let gammas = (0..g).map(|j| c[(j, j)]).collect();
+        let cinv = c.clone().try_inverse().ok_or(ThetaError::NotPositiveDefinite { smallest: lo })?;
+        let (c_frob, cinv_norm) = (c.norm(), cinv.norm());
+        let cabs = c.map(f64::abs);
+        let ubs = uf.map(f64::abs);
+        let chol_err = (g as f64 + 2.0) * (cabs.transpose() * &cabs).norm()
+            + 2.0 * PI * g as f64 * (ubs.transpose() * y.map(f64::abs) * &ubs).norm();
+        // The tail bound needs the exact lattice's Cholesky diagonal and smallest
+        // eigenvalue; the computed ones are within a relative u chol_err ||C^-1||^2 (and
+        // the eigenvalue solver's g u ||Y||_F) of them: shrink both by that much.
+        let shrink = 1.0 - 4.0 * f64::EPSILON * chol_err * cinv_norm * cinv_norm;
+        let lo_safe = lo - 4.0 * f64::EPSILON * g as f64 * y.norm();
+        if shrink <= 0.5 || lo_safe <= 0.0 {
+            return Err(ThetaError::NotPositiveDefinite { smallest: lo });
+        }
+        let gammas = (0..g).map(|j| c[(j, j)] * shrink).collect();
         let ucx = uf.map(|v| C64::new(v, 0.0));
         let taur = ucx.transpose() * &tau * &ucx;
         let yred_inv = yred.clone().try_inverse().ok_or(ThetaError::NotPositiveDefinite { smallest: lo })?;
@@ -217,6 +241,7 @@ impl ThetaContext {
             half.iter_mut().for_each(|v| *v = (*v / 2).max(1));
         }
         let tables = sum::Tables::new(&taur, half);
+        let uinv_frob = uinv.map(|v| v as f64).norm();
         Ok(ThetaContext {
             max_points: crate::limits::current().max_lattice_points,
             g,
@@ -227,9 +252,13 @@ impl ThetaContext {
             uinv,
             c,
             gammas,
-            kappa: 1.0 / (PI * lo).sqrt(),
-            cond: hi / lo,
-            ynorm: hi,
+            kappa: 1.0 / (PI * lo_safe).sqrt(),
+            kappa_c: c_frob * cinv_norm,
+            chol_err,
+            cinv_norm,
+            y_frob: y.norm(),
+            c_frob,
+            uinv_frob,
             taur,
             yred_inv_diag,
             tables,
@@ -400,7 +429,29 @@ impl ThetaContext {
         let phase = |v: C64| C64::new(0.0, v.im).exp();
         let mut pows = Vec::with_capacity(zs.len());
         let mut kfacs = Vec::with_capacity(zs.len());
-        let (mut l_size, mut l0_size, mut k_size) = (0.0f64, 0.0f64, 0.0f64);
+        // Absolute rounding (units of u) of the reduced phases and of the common phase.
+        let mut phase_err = vec![0.0f64; g];
+        let mut common_err = 0.0f64;
+        let gf = g as f64;
+        for z in zs {
+            let v_abs: Vec<f64> = (0..g)
+                .map(|i| {
+                    (0..g).map(|j| self.tau[(i, j)].norm() * a2[j].abs()).sum::<f64>() + z[i].norm() + ch.b[i].abs()
+                })
+                .collect();
+            for j in 0..g {
+                let e = (gf + 4.0) * 2.0 * PI * (0..g).map(|i| v_abs[i] * uf(i, j).abs()).sum::<f64>();
+                phase_err[j] = phase_err[j].max(e);
+            }
+            let k_abs: f64 = (0..g)
+                .map(|i| {
+                    a2[i].abs()
+                        * (PI * (0..g).map(|j| self.re[(i, j)].abs() * a2[j].abs()).sum::<f64>()
+                            + 2.0 * PI * (z[i].re.abs() + ch.b[i].abs()))
+                })
+                .sum();
+            common_err = common_err.max((2.0 * gf + 4.0) * k_abs);
+        }
         for z in zs {
             let zb: Vec<C64> = (0..g).map(|i| z[i] + ch.b[i]).collect();
             let v: Vec<C64> = (0..g).map(|i| (0..g).map(|j| self.tau[(i, j)] * a2[j]).sum::<C64>() + zb[i]).collect();
@@ -422,9 +473,6 @@ impl ThetaContext {
                 let row: f64 = (0..g).map(|j| self.re[(i, j)] * a2[j]).sum();
                 k_arg += a2[i] * (PI * row + 2.0 * PI * zb[i].re);
             }
-            l_size = l_size.max((0..g).map(|j| l[j].norm() * need[j] as f64).sum::<f64>());
-            l0_size = l0_size.max(l[0].norm());
-            k_size = k_size.max(k_arg.abs());
             pows.push(pow);
             kfacs.push(C64::new(0.0, k_arg).exp());
         }
@@ -433,6 +481,31 @@ impl ThetaContext {
             .map(|d| (0..g).map(|j| i2pi * (0..g).map(|i| d[i] * uf(i, j)).sum::<C64>()).collect())
             .collect();
         let dir_const: Vec<C64> = dirs.iter().map(|d| i2pi * (0..g).map(|i| d[i] * a2[i]).sum::<C64>()).collect();
+        // Rounding: a bound derived in `rounding.rs`.
+        let h: Vec<f64> = need.iter().map(|&v| v as f64).collect();
+        let ynorm = yv.norm();
+        let log_factor_err =
+            PI * 4.0 * gf * self.y_frob * cnorm * cnorm + (gf + 2.0) * PI * ynorm * cnorm + 4.0 * log_factor.abs();
+        let char_a = a2.iter().map(|v| v * v).sum::<f64>().sqrt();
+        let mut growth = self.term_growth(&rounding::PassSizes {
+            half: &h,
+            radius,
+            phase_err: &phase_err,
+            common_err,
+            centre: cnorm,
+            char_a,
+            log_factor_err,
+        });
+        // lin = dir_const + sum_j rdirs_j v_j with |v_j| <= h_j, each part itself rounded.
+        let dir_err: Vec<f64> = rdirs
+            .iter()
+            .zip(&dir_const)
+            .map(|(d, c)| {
+                2.0 * (gf + 2.0)
+                    * U
+                    * (c.norm() + (0..g).map(|j| (d[j].re.abs() + d[j].im.abs()) * need[j] as f64).sum::<f64>())
+            })
+            .collect();
         let out = sum::run(&sum::SumInput {
             tables,
             c: &self.c,
@@ -444,42 +517,46 @@ impl ThetaContext {
             dirs: &rdirs,
             dir_const: &dir_const,
             monos,
+            growth: [growth.per_step, growth.per_step2, growth.per_w2],
+            dir_err: &dir_err,
         });
+        growth.max_line = out.max_line as f64;
 
-        // Rounding: each factor exp(v) carries a relative error of about eps |v| from the
-        // rounding of v; the tables, powers and line recurrences multiply such factors.
-        let h: Vec<f64> = need.iter().map(|&v| v as f64).collect();
-        let nsum: f64 = h.iter().sum();
-        let taumax = self.taur.iter().map(|v| v.norm()).fold(0.0, f64::max);
-        let t00 = self.taur[(0, 0)].norm();
-        let line = out.max_line as f64;
-        let ratio_arg = PI * t00 * (2.0 * h[0] + 1.0)
-            + l0_size
-            + 2.0 * PI * (1..g).map(|k| self.taur[(0, k)].norm() * h[k]).sum::<f64>();
-        let growth = 16.0
-            + 4.0 * (g * g) as f64
-            + PI * taumax * nsum * nsum
-            + l_size
-            + k_size
-            + radius * radius
-            + line * ratio_arg
-            + line * line * PI * t00;
-        // The centre c = Y^-1 Im z carries an error of about eps cond(Y) |c|, moving a
-        // term's modulus by at most 2 sqrt(pi) R |error| ||Y||^(1/2).
-        let centre_err = 2.0 * PI.sqrt() * radius * self.cond * cnorm * self.ynorm.sqrt();
-        let rel = f64::EPSILON * (growth + centre_err);
+        let bounds: Vec<f64> = monos
+            .iter()
+            .zip(&out.abs)
+            .enumerate()
+            .map(|(mi, (mono, &abs))| {
+                let sums = rounding::TermSums { abs, grow: out.grow[mi], weight_err: out.weight_err[mi] };
+                truncation + self.rounding_bound(&sums, &growth, mono)
+            })
+            .collect();
         let values = out
             .acc
             .iter()
-            .map(|acc| {
-                acc.iter()
-                    .zip(&out.abs)
-                    .map(|(v, a)| ThetaValue { log_factor, value: *v, error: truncation + a * rel })
-                    .collect()
-            })
+            .map(|acc| acc.iter().zip(&bounds).map(|(v, &error)| ThetaValue { log_factor, value: *v, error }).collect())
             .collect();
         Ok((values, SumStats { points: out.points, lines: out.lines, radius }))
     }
+}
+
+/// One theta value theta[ch](z | tau) with inputs off by at most `tau_err` (entrywise)
+/// and `z_err`: the modular transformation for genus 1 with small Im tau, else the direct
+/// sum (whose bound then covers only exact inputs: the caller propagates `tau_err`, `z_err`
+/// by derivatives, see `theta_fn.rs`; here they must be 0 on that path).
+pub fn value_with_inputs(
+    tau: &DMatrix<C64>,
+    z: &[C64],
+    ch: Option<&Characteristic>,
+    tau_err: f64,
+    z_err: f64,
+    accuracy: f64,
+) -> Option<Result<ThetaValue, ThetaError>> {
+    if tau.nrows() == 1 && tau.ncols() == 1 && z.len() == 1 && tau[(0, 0)].im < genus1::USE_BELOW_IM_TAU {
+        let zero = Characteristic::zero(1);
+        return Some(genus1::eval(tau[(0, 0)], z[0], ch.unwrap_or(&zero), tau_err, z_err, accuracy));
+    }
+    None
 }
 
 fn norm(d: &[C64]) -> f64 {

@@ -98,13 +98,28 @@ pub struct SumInput<'a> {
     pub dirs: &'a [Vec<C64>],
     pub dir_const: &'a [C64],
     pub monos: &'a [Vec<u32>],
+    /// (c1, c2, c3) of [`SumOutput::grow`].
+    pub growth: [f64; 3],
+    /// Per direction: a bound on the absolute rounding of 2 pi i m.d at any point.
+    pub dir_err: &'a [f64],
 }
 
 pub struct SumOutput {
     /// acc[b][i]: the sum for z number b and monomial i.
     pub acc: Vec<Vec<C64>>,
-    /// Sum of |term| * |weight| per monomial (the same for every z of a pass).
+    /// Running compensation of `acc` (line sums are added with TwoSum, so the
+    /// accumulation over many lines costs no more than one rounding).
+    comp: Vec<Vec<C64>>,
+    /// Sum of |term| * |weight| per monomial (the same for every z of a pass), as
+    /// |re| + |im|, an upper bound of the modulus.
     pub abs: Vec<f64>,
+    /// Sum of |term| (as |re| + |im|) without derivative weights.
+    pub abs0: f64,
+    /// Per monomial: sum of |term| |weight| (c1 k + c2 k^2 + c3 |w|^2), the part of the
+    /// terms' rounding that grows with the step k along the line and with |w|^2.
+    pub grow: Vec<f64>,
+    /// Per monomial: sum of |term| times the bound on its weight's rounding.
+    pub weight_err: Vec<f64>,
     pub points: usize,
     pub lines: usize,
     pub max_line: usize,
@@ -121,8 +136,21 @@ pub fn run(inp: &SumInput) -> SumOutput {
         n: vec![0; g],
         prod: vec![vec![zero; nb]; g + 1],
         lin: vec![vec![zero; g + 1]; inp.dirs.len()],
-        out: SumOutput { acc: vec![vec![zero; nm]; nb], abs: vec![0.0; nm], points: 0, lines: 0, max_line: 0 },
+        out: SumOutput {
+            acc: vec![vec![zero; nm]; nb],
+            comp: vec![vec![zero; nm]; nb],
+            abs: vec![0.0; nm],
+            abs0: 0.0,
+            grow: vec![0.0; nm],
+            weight_err: vec![0.0; nm],
+            points: 0,
+            lines: 0,
+            max_line: 0,
+        },
+        line_acc: vec![vec![zero; nm]; nb],
         powers: maxe.iter().map(|&e| vec![zero; e as usize + 1]).collect(),
+        spow: maxe.iter().map(|&e| vec![0.0; e as usize + 1]).collect(),
+        spow_up: maxe.iter().map(|&e| vec![0.0; e as usize + 1]).collect(),
         weights: vec![zero; nm],
         t: vec![zero; nb],
         rho: vec![zero; nb],
@@ -132,7 +160,30 @@ pub fn run(inp: &SumInput) -> SumOutput {
         w.lin[i][g] = inp.dir_const[i];
     }
     w.level(g - 1, inp.r2, 0.0);
-    w.out
+    let mut out = w.out;
+    for (acc, comp) in out.acc.iter_mut().zip(&out.comp) {
+        for (a, c) in acc.iter_mut().zip(comp) {
+            *a += c;
+        }
+    }
+    out
+}
+
+/// Knuth's TwoSum: s + e = a + b exactly, with s = fl(a + b).
+#[inline]
+fn two_sum(a: f64, b: f64) -> (f64, f64) {
+    let s = a + b;
+    let bb = s - a;
+    (s, (a - (s - bb)) + (b - bb))
+}
+
+/// acc + x with the rounding error kept in `comp`.
+#[inline]
+fn add_compensated(acc: &mut C64, comp: &mut C64, x: C64) {
+    let (re, er) = two_sum(acc.re, x.re);
+    let (im, ei) = two_sum(acc.im, x.im);
+    *acc = C64::new(re, im);
+    *comp += C64::new(er, ei);
 }
 
 struct Walker<'a> {
@@ -144,9 +195,13 @@ struct Walker<'a> {
     lin: Vec<Vec<C64>>,
     out: SumOutput,
     powers: Vec<Vec<C64>>,
+    spow: Vec<Vec<f64>>,
+    spow_up: Vec<Vec<f64>>,
     weights: Vec<C64>,
     t: Vec<C64>,
     rho: Vec<C64>,
+    /// Sums along the current line, per z and monomial.
+    line_acc: Vec<Vec<C64>>,
 }
 
 impl Walker<'_> {
@@ -222,26 +277,43 @@ impl Walker<'_> {
         self.out.max_line = self.out.max_line.max(len);
         let q = inp.q;
         if inp.dirs.is_empty() {
-            let mut abs = 0.0;
-            for (b, acc) in self.out.acc.iter_mut().enumerate() {
+            let [c1, c2, c3] = inp.growth;
+            let (mut abs, mut grow) = (0.0, 0.0);
+            for (b, (acc, comp)) in self.out.acc.iter_mut().zip(self.out.comp.iter_mut()).enumerate() {
                 let (mut t, mut rho) = (self.t[b], self.rho[b]);
                 let mut sum = C64::new(0.0, 0.0);
-                for _ in 0..len {
-                    sum += t;
-                    if b == 0 {
-                        abs += t.re.abs() + t.im.abs();
+                if b == 0 {
+                    for k in 0..len {
+                        sum += t;
+                        let (m, kf) = (t.re.abs() + t.im.abs(), k as f64);
+                        let wk = g0 * (x0 + kf);
+                        abs += m;
+                        grow += m * (kf * (c1 + c2 * kf) + c3 * (used + wk * wk));
+                        t *= rho;
+                        rho *= q;
                     }
-                    t *= rho;
-                    rho *= q;
+                } else {
+                    for _ in 0..len {
+                        sum += t;
+                        t *= rho;
+                        rho *= q;
+                    }
                 }
-                for a in acc.iter_mut() {
-                    *a += sum;
+                for (a, c) in acc.iter_mut().zip(comp.iter_mut()) {
+                    add_compensated(a, c, sum);
                 }
             }
             for a in self.out.abs.iter_mut() {
                 *a += abs;
             }
+            self.out.abs0 += abs;
+            for a in self.out.grow.iter_mut() {
+                *a += grow;
+            }
             return;
+        }
+        for row in self.line_acc.iter_mut() {
+            row.iter_mut().for_each(|a| *a = C64::new(0.0, 0.0));
         }
         for step in 0..len {
             let v = lo + step as i64;
@@ -253,8 +325,23 @@ impl Walker<'_> {
                     *slot = cur;
                     cur *= s;
                 }
+                // Powers of |s| and of |s| + (its rounding), for the weights' error.
+                let (sa, q) = (&mut self.spow[i], &mut self.spow_up[i]);
+                let m = s.re.abs() + s.im.abs();
+                let (mut a, mut b) = (1.0, 1.0);
+                for k in 0..sa.len() {
+                    sa[k] = a;
+                    q[k] = b;
+                    a *= m;
+                    b *= m + inp.dir_err[i];
+                }
             }
             let tabs = self.t[0].re.abs() + self.t[0].im.abs();
+            let kf = step as f64;
+            self.out.abs0 += tabs;
+            let wk = g0 * (x0 + kf);
+            let [c1, c2, c3] = inp.growth;
+            let tgrow = tabs * (kf * (c1 + c2 * kf) + c3 * (used + wk * wk));
             for (mi, mo) in inp.monos.iter().enumerate() {
                 let mut wgt = C64::new(1.0, 0.0);
                 for (i, &e) in mo.iter().enumerate() {
@@ -265,15 +352,32 @@ impl Walker<'_> {
                 self.weights[mi] = wgt;
                 // |re| + |im| bounds the modulus within sqrt 2 without a hypot per term
                 // (which was a third of a wave grid's time).
-                self.out.abs[mi] += tabs * (wgt.re.abs() + wgt.im.abs());
+                let wabs = wgt.re.abs() + wgt.im.abs();
+                self.out.abs[mi] += tabs * wabs;
+                self.out.grow[mi] += tgrow * wabs;
+                // prod (|s_i| + d_i)^e_i - prod |s_i|^e_i bounds the weight's error (it grows
+                // with each |s_i|, so the upper bound |re| + |im| of |s_i| may stand in).
+                let (mut up, mut lo) = (1.0, 1.0);
+                for (i, &e) in mo.iter().enumerate() {
+                    if e > 0 {
+                        up *= self.spow_up[i][e as usize];
+                        lo *= self.spow[i][e as usize];
+                    }
+                }
+                self.out.weight_err[mi] += tabs * (up - lo);
             }
             for b in 0..self.t.len() {
                 let t = self.t[b];
-                for (acc, w) in self.out.acc[b].iter_mut().zip(&self.weights) {
+                for (acc, w) in self.line_acc[b].iter_mut().zip(&self.weights) {
                     *acc += t * w;
                 }
                 self.t[b] = t * self.rho[b];
                 self.rho[b] *= q;
+            }
+        }
+        for ((acc, comp), line) in self.out.acc.iter_mut().zip(self.out.comp.iter_mut()).zip(&self.line_acc) {
+            for ((a, c), x) in acc.iter_mut().zip(comp.iter_mut()).zip(line) {
+                add_compensated(a, c, *x);
             }
         }
     }
