@@ -97,7 +97,7 @@ impl Evaluator<'_> {
         let s = &self.checked.settings;
         let accuracy = (s.accuracy().min(s.tolerance()) * 1e-3).max(1e-17);
         if along.is_empty() {
-            // Small Im tau in genus 1: the modular transformation, which carries the
+            // Small Im tau: Siegel's reduction applied to the value, which carries the
             // inputs' errors itself.
             let transformed =
                 crate::theta::value_with_inputs(&tm, &z, ch.as_ref(), tv.error_bound, zv.error_bound, accuracy);

@@ -14,11 +14,11 @@
 
 pub mod bench_cases;
 pub mod bound;
-pub mod genus1;
 pub mod lattice;
 mod rounding;
 pub mod siegel;
 mod sum;
+pub mod transform;
 
 use bound::TailInput;
 use nalgebra::{DMatrix, DVector, SymmetricEigen};
@@ -123,6 +123,14 @@ impl ThetaValue {
     }
 }
 
+/// Bounds on how far the tau (spectral norm of the difference) and the z (Euclidean
+/// norm) given to a sum are from the ones meant, when they come out of a computation.
+#[derive(Clone, Copy, Debug, Default, PartialEq)]
+pub struct InputErrors {
+    pub tau: f64,
+    pub z: f64,
+}
+
 /// Statistics of the last evaluation, for benchmarks and hover.
 #[derive(Clone, Copy, Debug, Default, PartialEq)]
 pub struct SumStats {
@@ -132,6 +140,10 @@ pub struct SumStats {
     /// the first of its line two complex multiplications.
     pub lines: usize,
     pub radius: f64,
+    /// |Y^-1 Im z|, the distance of the ellipsoid's centre from the origin.
+    pub centre: f64,
+    /// Sum of the summed terms' moduli (bounded parts; an upper bound, |re| + |im| each).
+    pub moduli: f64,
 }
 
 /// Everything about tau that every evaluation reuses.
@@ -314,7 +326,21 @@ impl ThetaContext {
         monos: &[Vec<u32>],
         accuracy: f64,
     ) -> Result<(Vec<ThetaValue>, SumStats), ThetaError> {
-        let (mut v, stats) = self.pass(&[z], ch, dirs, monos, accuracy)?;
+        let (mut v, stats) = self.pass(&[z], ch, dirs, monos, accuracy, InputErrors::default())?;
+        Ok((v.swap_remove(0), stats))
+    }
+
+    /// [`ThetaContext::sums`] for a tau and z that are themselves off by at most
+    /// `errors` (norms): the bound covers the change of every term.
+    pub fn sums_with_input_errors(
+        &self,
+        z: &[C64],
+        ch: Option<&Characteristic>,
+        monos: &[Vec<u32>],
+        accuracy: f64,
+        errors: InputErrors,
+    ) -> Result<(Vec<ThetaValue>, SumStats), ThetaError> {
+        let (mut v, stats) = self.pass(&[z], ch, &[], monos, accuracy, errors)?;
         Ok((v.swap_remove(0), stats))
     }
 
@@ -338,7 +364,7 @@ impl ThetaContext {
                 j += 1;
             }
             let group: Vec<&[C64]> = zs[i..j].iter().map(Vec::as_slice).collect();
-            out.extend(self.pass(&group, ch, dirs, monos, accuracy)?.0);
+            out.extend(self.pass(&group, ch, dirs, monos, accuracy, InputErrors::default())?.0);
             i = j;
         }
         Ok(out)
@@ -352,6 +378,7 @@ impl ThetaContext {
         dirs: &[Vec<C64>],
         monos: &[Vec<u32>],
         accuracy: f64,
+        errors: InputErrors,
     ) -> Result<(Vec<Vec<ThetaValue>>, SumStats), ThetaError> {
         let z = zs[0];
         let g = self.g;
@@ -406,7 +433,13 @@ impl ThetaContext {
             weight: weight.max(f64::MIN_POSITIVE),
         };
         let radius = bound::radius(&tail_in, accuracy);
-        let truncation = bound::tail(&tail_in, radius);
+        // With input errors the exact lattice's moduli differ by a factor exp(pi m^T E m); the
+        // tail then grows by at most that factor at the radius, kept below 2 (else no bound).
+        let input_tail = 2.0 * errors.tau * radius * radius * self.kappa * self.kappa * PI;
+        if input_tail > std::f64::consts::LN_2 {
+            return Err(ThetaError::NotFinite);
+        }
+        let truncation = bound::tail(&tail_in, radius) * input_tail.exp();
         let estimate = ellipsoid_points(radius, &self.gammas);
         if estimate > self.max_points {
             return Err(ThetaError::TooManyPoints { estimate, limit: self.max_points });
@@ -487,6 +520,14 @@ impl ThetaContext {
         let log_factor_err =
             PI * 4.0 * gf * self.y_frob * cnorm * cnorm + (gf + 2.0) * PI * ynorm * cnorm + 4.0 * log_factor.abs();
         let char_a = a2.iter().map(|v| v * v).sum::<f64>().sqrt();
+        // Input errors, in units of u, as a per-term constant and a part growing with |w|^2:
+        // pi |m^T E m| + 2 pi |m.e_z| with |m| <= |m + c| + |c| and |m + c|^2 <= |w|^2 / (pi lambda):
+        // at most 2 pi |E| |c|^2 + 2 pi e_z (|c| + 1 / (2 sqrt(pi lambda))) + (2 |E| / lambda +
+        // pi e_z / sqrt(pi lambda)) |w|^2.
+        let lambda = 1.0 / (PI * self.kappa * self.kappa);
+        let sl = (PI * lambda).sqrt();
+        let input_shared = (2.0 * PI * errors.tau * cnorm * cnorm + 2.0 * PI * errors.z * (cnorm + 0.5 / sl)) / U;
+        let input_w2 = (2.0 * errors.tau / lambda + PI * errors.z / sl) / U;
         let mut growth = self.term_growth(&rounding::PassSizes {
             half: &h,
             radius,
@@ -494,8 +535,9 @@ impl ThetaContext {
             common_err,
             centre: cnorm,
             char_a,
-            log_factor_err,
+            log_factor_err: log_factor_err + input_shared,
         });
+        growth.per_w2 += input_w2;
         // lin = dir_const + sum_j rdirs_j v_j with |v_j| <= h_j, each part itself rounded.
         let dir_err: Vec<f64> = rdirs
             .iter()
@@ -536,14 +578,14 @@ impl ThetaContext {
             .iter()
             .map(|acc| acc.iter().zip(&bounds).map(|(v, &error)| ThetaValue { log_factor, value: *v, error }).collect())
             .collect();
-        Ok((values, SumStats { points: out.points, lines: out.lines, radius }))
+        Ok((values, SumStats { points: out.points, lines: out.lines, radius, centre: cnorm, moduli: out.abs0 }))
     }
 }
 
 /// One theta value theta[ch](z | tau) with inputs off by at most `tau_err` (entrywise)
-/// and `z_err`: the modular transformation for genus 1 with small Im tau, else the direct
-/// sum (whose bound then covers only exact inputs: the caller propagates `tau_err`, `z_err`
-/// by derivatives, see `theta_fn.rs`; here they must be 0 on that path).
+/// and `z_err`, through Siegel's reduction (`transform.rs`) when Im tau has a short
+/// lattice vector; `None` otherwise: the caller then sums directly (and propagates
+/// `tau_err`, `z_err` by derivatives, see `theta_fn.rs`).
 pub fn value_with_inputs(
     tau: &DMatrix<C64>,
     z: &[C64],
@@ -552,11 +594,15 @@ pub fn value_with_inputs(
     z_err: f64,
     accuracy: f64,
 ) -> Option<Result<ThetaValue, ThetaError>> {
-    if tau.nrows() == 1 && tau.ncols() == 1 && z.len() == 1 && tau[(0, 0)].im < genus1::USE_BELOW_IM_TAU {
-        let zero = Characteristic::zero(1);
-        return Some(genus1::eval(tau[(0, 0)], z[0], ch.unwrap_or(&zero), tau_err, z_err, accuracy));
+    let g = tau.nrows();
+    if tau.ncols() != g || z.len() != g || g == 0 || !tau.iter().all(|v| v.re.is_finite() && v.im.is_finite()) {
+        return None;
     }
-    None
+    if tau.map(|v| v.im).cholesky().is_none() || !transform::worthwhile(tau) {
+        return None;
+    }
+    let zero = Characteristic::zero(g);
+    transform::eval(tau, z, ch.unwrap_or(&zero), tau_err, z_err, accuracy)
 }
 
 fn norm(d: &[C64]) -> f64 {

@@ -8,34 +8,46 @@
 //! longest innermost line (standard error model fl(a op b) = (a op b)(1 + d), |d| <= u;
 //! an argument a computed by k operations carries k u |a|; exp(i a) then adds 2u):
 //!
-//! * tables: exp(i pi X'_jj v^2) (|v| <= h_j): 6 pi |X'_jj| h_j^2 + 2; exp(2 pi i X'_jk v w):
-//!   12 pi |X'_jk| h_j h_k + 2;
+//! * tables: exp(i pi X'_jj v^2): 6 pi |X'_jj| n_j^2 + 2; exp(2 pi i X'_jk v w):
+//!   12 pi |X'_jk| |n_j n_k| + 2;
 //! * the rounding of tau' = U^T tau U itself moves the phase pi n^T X' n by at most
-//!   2 g pi h^T |U|^T |X| |U| h;
-//! * powers of exp(i phi_j) by repeated products: h_j (2 e_j + 5), e_j the absolute
+//!   2 g pi ||(|U|^T |X| |U|)||_F |n|^2;
+//! * powers of exp(i phi_j) by repeated products: |n_j| (e_j + 5), e_j the absolute
 //!   rounding of phi_j in units of u (the caller's `phase_err`), and the common phase: its own
 //!   rounding `common_err` + 2;
 //! * products across the levels and at the start of a line: 3 per complex product
 //!   (sqrt 5 u, Brent, Percival & Zimmermann, Math. Comp. 76 (2007)), g (g + 3) / 2 + g + 4
 //!   products;
 //! * moduli exp(-|w|^2): |w|^2 is a sum of squares of sums, each within 2 (g + 3) u of
-//!   (|C||n + s|)^2 <= (kappa_C R)^2 with kappa_C = ||C||_F ||C^-1||_2;
+//!   (|C||n + s|)^2 <= (kappa_C |w|)^2 with kappa_C = ||C||_F ||C^-1||_2;
 //! * the Cholesky factor C of pi Y' is exact for pi Y' + Delta, ||Delta||_F <= u `chol_err`
 //!   (Higham, *Accuracy and Stability of Numerical Algorithms*, 2nd ed., Thm 10.3, with
-//!   the rounding of U^T Y U), which moves |w|^2 by at most ||Delta||_F ||C^-1||^2 R^2;
-//! * the innermost line: t(v + 1) = t(v) rho(v), rho(v + 1) = rho(v) q, so after v steps
-//!   rho carries v (dq + 3) and t carries v drho0 + v^2 / 2 (dq + 3) + 3 v, with dq =
-//!   12 pi |tau'_00| + 3 and drho0 the errors of rho's first value (the step table, the
-//!   cross tables at v = 1, the modulus ratio exp(-g0^2 (2 x0 + 1)) and one phase power);
+//!   the rounding of U^T Y U), which moves |w|^2 by at most ||Delta||_F ||C^-1||^2 |w|^2;
+//! * the centre c = Y^-1 Im z solves a nearby system (residual 4 g u ||Y||_F |c|), which
+//!   moves the exponent by 2 pi |m| times that, and s = U^-1 (a + c) is rounded;
+//! * the innermost line is walked from its point nearest the centre outwards:
+//!   t(k + 1) = t(k) rho(k), rho(k + 1) = rho(k) q, so k steps out rho carries k (dq + 3)
+//!   and t carries k drho0 + k^2 / 2 (dq + 3) + 3 k, with dq = 12 pi |tau'_00| + 3 and drho0
+//!   the errors of rho's first value (the step table, the cross tables at v = +-1, the
+//!   modulus ratio exp(-g0^2 (2 x0 +- 1)) and one phase power);
 //! * the sum: each line is summed recursively (L - 1 roundings, counted as L + 3 with the
 //!   weight product) and the line sums are added with compensation (2 u of the total,
 //!   bounded by the sum of moduli).
 //!
-//! Derivative weights prod (2 pi i m.d_i)^e_i are formed from sums that can cancel, so
-//! their rounding is bounded absolutely: each factor s has |s| <= S_i (the ellipsoid's
-//! bound on |2 pi m.d_i|) and an absolute error of (g + 2) u S_i, so a weight of total
-//! order k is off by at most k (g + 2) u prod S_i^e_i (first order); times the sum of
-//! the terms' moduli.
+//! The reduced coordinates are bounded by the term's own |w|: |n_j + s_j| <= alpha_j |w|
+//! with alpha_j^2 = (Y'^-1)_jj / pi and |s_j| <= 1/2, so every error above is a constant
+//! plus a multiple of |w|^2 (or of k, k^2 along the line); the sum accumulates
+//! |term| (c1 k + c2 k^2 + c3 |w|^2) term by term, so the large central terms are charged
+//! their own small errors, not the ellipsoid's worst.
+//!
+//! Derivative weights prod (2 pi i m.d_i)^e_i are formed from sums s_i that can cancel, so
+//! their rounding is bounded absolutely: |s_i| carries at most d_i = 2 (g + 2) u (|const| +
+//! sum_j |d'_ij| h_j), and prod (|s_i| + d_i)^e_i - prod |s_i|^e_i bounds the weight's
+//! error (summed term by term with the term's modulus).
+//!
+//! Inputs that are themselves uncertain (tau and z out of a computation, norms E and e_z,
+//! see `InputErrors`) move a term's exponent by pi |m^T E m| + 2 pi |m.e_z|, split the same
+//! way into a constant and a multiple of |w|^2.
 
 use super::ThetaContext;
 
@@ -51,8 +63,8 @@ pub(super) struct Growth {
     pub max_line: f64,
 }
 
-/// Sums of moduli from one pass: with the monomial's weights (`abs`), without (`abs0`),
-/// and with weights times the growth per term (`grow`, see `sum::SumOutput::grow`).
+/// Sums of moduli from one pass, with the monomial's weights: plain (`abs`), times the
+/// growth per term (`grow`, see `sum::SumOutput::grow`), and the weights' own rounding.
 pub(super) struct TermSums {
     pub abs: f64,
     pub grow: f64,
@@ -85,47 +97,68 @@ impl ThetaContext {
     /// into its line carries at most c1 k + c2 k^2 more.
     pub(super) fn term_growth(&self, p: &PassSizes) -> Growth {
         let g = self.g;
-        let h = p.half;
-        let x = self.taur.map(|v| v.re.abs());
-        let mut tables = 0.0;
-        for j in 0..g {
-            tables += 6.0 * PI * x[(j, j)] * h[j] * h[j] + 2.0;
-            for k in j + 1..g {
-                tables += 12.0 * PI * x[(j, k)] * h[j] * h[k] + 2.0;
-            }
-        }
-        // Rounding of tau' = U^T tau U as seen by the phases.
-        let uh: Vec<f64> = (0..g).map(|i| (0..g).map(|j| self.u[(i, j)].unsigned_abs() as f64 * h[j]).sum()).collect();
-        let xabs = self.re.map(f64::abs);
-        let mut tau_round = 0.0;
-        for i in 0..g {
-            for j in 0..g {
-                tau_round += uh[i] * xabs[(i, j)] * uh[j];
-            }
-        }
-        tau_round *= 2.0 * g as f64 * PI;
-        let powers: f64 = (0..g).map(|j| h[j] * (2.0 * p.phase_err[j] + 5.0)).sum::<f64>() + p.common_err + 2.0;
         let gf = g as f64;
-        let products = 3.0 * (gf * (gf + 3.0) / 2.0 + gf + 4.0);
-        let r2 = p.radius * p.radius;
-        // Both grow with the term's own |w|^2 (at most R^2).
-        let per_w2 = 2.0 * (gf + 3.0) * self.kappa_c * self.kappa_c + self.chol_err * self.cinv_norm * self.cinv_norm;
-        let moduli = 2.0;
+        let x = self.taur.map(|v| v.re.abs());
+        // Most errors grow with the term's reduced coordinates n_j, which the ellipsoid
+        // bounds by its own |w|: |n_j + s_j| <= alpha_j |w| (alpha_j^2 = (Y'^-1)_jj / pi) and
+        // |s_j| <= 1/2, so |n_j| <= alpha_j (1 + |w|^2) / 2 + 1/2 and n_j^2 <= 2 alpha_j^2
+        // |w|^2 + 1/2. Each error is split into a constant and a multiple of |w|^2.
+        let alpha: Vec<f64> = self.yred_inv_diag.iter().map(|d| (d / PI).sqrt()).collect();
+        let (mut shared, mut per_w2) = (0.0, 0.0);
+        let sq = |coef: f64, j: usize, shared: &mut f64, per_w2: &mut f64| {
+            // coef n_j^2
+            *shared += coef * 0.5;
+            *per_w2 += coef * 2.0 * alpha[j] * alpha[j];
+        };
+        for j in 0..g {
+            // tables: 6 pi |X'_jj| n_j^2 + 2, and 12 pi |X'_jk| |n_j n_k| <= 6 pi |X'_jk| (n_j^2 + n_k^2).
+            sq(6.0 * PI * x[(j, j)], j, &mut shared, &mut per_w2);
+            shared += 2.0;
+            for k in j + 1..g {
+                sq(6.0 * PI * x[(j, k)], j, &mut shared, &mut per_w2);
+                sq(6.0 * PI * x[(j, k)], k, &mut shared, &mut per_w2);
+                shared += 2.0;
+            }
+        }
+        // Rounding of tau' = U^T tau U as seen by the phases: 2 g pi |n|^T |U|^T |X| |U| |n| <=
+        // 2 g pi ||M||_F sum n_j^2.
+        let ua = self.u.map(|v| v.unsigned_abs() as f64);
+        let m_norm = (ua.transpose() * self.re.map(f64::abs) * &ua).norm();
+        for j in 0..g {
+            sq(2.0 * gf * PI * m_norm, j, &mut shared, &mut per_w2);
+        }
+        // Powers of the phases: |n_j| (e_j + 5), and the common phase.
+        for j in 0..g {
+            let c = p.phase_err[j] + 5.0;
+            shared += c * (alpha[j] / 2.0 + 0.5);
+            per_w2 += c * alpha[j] / 2.0;
+        }
+        shared += p.common_err + 2.0;
+        // Products across levels; the moduli (|w|^2 as sums of squares) and the Cholesky
+        // factor (both grow with |w|^2).
+        shared += 3.0 * (gf * (gf + 3.0) / 2.0 + gf + 4.0) + 2.0;
+        per_w2 += 2.0 * (gf + 3.0) * self.kappa_c * self.kappa_c + self.chol_err * self.cinv_norm * self.cinv_norm;
         // The centre: the residual of the Cholesky solve moves a term's exponent by
-        // 2 pi |m| |Y c - y| <= 2 pi (kappa R + |c| + |a|) 4 g ||Y||_F |c|; the rounding of
-        // s = U^-1 (a + c) by 2 R ||C|| (g + 2) ||U^-1||_F (|a| + |c|).
-        let m_max = self.kappa * p.radius + p.centre + p.char_a;
-        let centre = 2.0 * PI * m_max * 4.0 * gf * self.y_frob * p.centre
-            + 2.0 * p.radius * self.c_frob * (gf + 2.0) * self.uinv_frob * (p.char_a + p.centre);
+        // 2 pi |m| |Y c - y| <= 2 pi |m| 4 g ||Y||_F |c| with |m| <= kappa |w| + |c| + |a|; the
+        // rounding of s = U^-1 (a + c) by 2 |w| ||C|| (g + 2) ||U^-1||_F (|a| + |c|).
+        let res = 2.0 * PI * 4.0 * gf * self.y_frob * p.centre;
+        shared += res * (self.kappa / 2.0 + p.centre + p.char_a);
+        per_w2 += res * self.kappa / 2.0;
+        let ds = self.c_frob * (gf + 2.0) * self.uinv_frob * (p.char_a + p.centre);
+        shared += ds;
+        per_w2 += ds;
+        shared += p.log_factor_err;
         // The innermost line.
+        let h = p.half;
         let g0 = self.gammas[0];
         let dq = 12.0 * PI * self.taur[(0, 0)].norm() + 3.0;
         let step = 6.0 * PI * x[(0, 0)] * (2.0 * h[0] + 1.0) + 2.0;
         let cross1: f64 = (1..g).map(|k| 12.0 * PI * x[(0, k)] * h[k] + 2.0).sum();
         let ratio = 3.0 * (2.0 * g0 * p.radius + 3.0 * g0 * g0) + 2.0;
-        let drho0 = step + cross1 + ratio + 2.0 * p.phase_err[0] + 5.0 + 3.0 * gf;
+        let drho0 = step + cross1 + ratio + p.phase_err[0] + 5.0 + 3.0 * gf;
+        let r2 = p.radius * p.radius;
         Growth {
-            shared: tables + tau_round + powers + products + moduli + centre + p.log_factor_err,
+            shared,
             per_w2,
             max_w2: r2 * (1.0 + 1e-6),
             per_step: drho0 + 3.0,

@@ -247,34 +247,55 @@ impl Walker<'_> {
         }
     }
 
-    /// The innermost line n_0 = lo..=hi: factors at its start, then the recurrence
-    /// t(v+1) = t(v) rho(v), rho(v+1) = rho(v) q.
+    /// The innermost line n_0 = lo..=hi, walked outwards from the point nearest its
+    /// centre in both directions, so that the recurrences' rounding (which grows with the
+    /// number of steps) is smallest on the largest terms.
     fn line(&mut self, lo: i64, hi: i64, centre: f64, used: f64) {
+        let len = (hi - lo + 1) as usize;
+        self.out.points += len;
+        self.out.lines += 1;
+        self.out.max_line = self.out.max_line.max(len);
+        let mid = ((-centre).round() as i64).clamp(lo, hi);
+        self.segment(mid, (hi - mid + 1) as usize, 1, centre, used);
+        if mid > lo {
+            self.segment(mid - 1, (mid - lo) as usize, -1, centre, used);
+        }
+    }
+
+    /// `len` points from n_0 = `start` in direction `dir` (+1 or -1): factors at the start,
+    /// then the recurrence t(k + 1) = t(k) rho(k), rho(k + 1) = rho(k) q (the ratio of
+    /// consecutive ratios is exp(2 pi i tau'_00) either way).
+    fn segment(&mut self, start: i64, len: usize, dir: i64, centre: f64, used: f64) {
         let inp = self.inp;
         let tb = inp.tables;
         let g = inp.c.nrows();
         let h0 = tb.half[0];
         let g0 = inp.c[(0, 0)];
-        let x0 = lo as f64 + centre;
-        let len = (hi - lo + 1) as usize;
-        let mut start = tb.diag(0, lo) * (-(used + g0 * g0 * x0 * x0)).exp();
-        // Lambda = prod_k exp(2 pi i X'_0k n_k): the n-dependent part of the ratio.
-        let mut lambda = tb.step[(lo + h0) as usize];
+        let x0 = start as f64 + centre;
+        let dirf = dir as f64;
+        let mut first = tb.diag(0, start) * (-(used + g0 * g0 * x0 * x0)).exp();
+        // Lambda = prod_k exp(+-2 pi i X'_0k n_k) times the diagonal step: the n-dependent part of the ratio.
+        let mut lambda = if len > 1 {
+            if dir > 0 {
+                tb.step[(start + h0) as usize]
+            } else {
+                tb.step[(start - 1 + h0) as usize].conj()
+            }
+        } else {
+            C64::new(0.0, 0.0)
+        };
         for k in 1..g {
-            start *= tb.cross(0, k, lo, self.n[k]);
-            lambda *= tb.cross(0, k, 1, self.n[k]);
+            first *= tb.cross(0, k, start, self.n[k]);
+            lambda *= tb.cross(0, k, dir, self.n[k]);
         }
-        // |w|^2 grows by g0^2 (2 x0 + 1) from one point to the next; within the ellipsoid
-        // that ratio lies in [e^-R^2, e^R^2], so it is only formed when a next point exists.
-        lambda *= if len > 1 { (-g0 * g0 * (2.0 * x0 + 1.0)).exp() } else { 0.0 };
-        let (ilo, one) = ((lo + h0) as usize, (h0 + 1) as usize);
+        // |w|^2 changes by g0^2 (2 dir x0 + 1) from one point to the next; within the
+        // ellipsoid that ratio lies in [e^-R^2, e^R^2], so it is only formed when a next point exists.
+        lambda *= if len > 1 { (-g0 * g0 * (2.0 * dirf * x0 + 1.0)).exp() } else { 0.0 };
+        let (istart, one) = ((start + h0) as usize, (h0 + dir) as usize);
         for b in 0..self.t.len() {
-            self.t[b] = self.prod[1][b] * inp.pow[b][0][ilo] * start;
+            self.t[b] = self.prod[1][b] * inp.pow[b][0][istart] * first;
             self.rho[b] = lambda * inp.pow[b][0][one];
         }
-        self.out.points += len;
-        self.out.lines += 1;
-        self.out.max_line = self.out.max_line.max(len);
         let q = inp.q;
         if inp.dirs.is_empty() {
             let [c1, c2, c3] = inp.growth;
@@ -283,15 +304,23 @@ impl Walker<'_> {
                 let (mut t, mut rho) = (self.t[b], self.rho[b]);
                 let mut sum = C64::new(0.0, 0.0);
                 if b == 0 {
-                    for k in 0..len {
+                    // Moments sum m k^j of the moduli along the line; |w|^2 = used +
+                    // g0^2 (x0 + k)^2 is expanded once per line.
+                    let (mut s0, mut s1, mut s2, mut kf) = (0.0, 0.0, 0.0, 0.0);
+                    for _ in 0..len {
                         sum += t;
-                        let (m, kf) = (t.re.abs() + t.im.abs(), k as f64);
-                        let wk = g0 * (x0 + kf);
-                        abs += m;
-                        grow += m * (kf * (c1 + c2 * kf) + c3 * (used + wk * wk));
+                        let m = t.re.abs() + t.im.abs();
+                        let mk = m * kf;
+                        s0 += m;
+                        s1 += mk;
+                        s2 += mk * kf;
+                        kf += 1.0;
                         t *= rho;
                         rho *= q;
                     }
+                    abs += s0;
+                    let w2 = used * s0 + g0 * g0 * (x0 * x0 * s0 + 2.0 * dirf * x0 * s1 + s2);
+                    grow += c1 * s1 + c2 * s2 + c3 * w2.max(0.0);
                 } else {
                     for _ in 0..len {
                         sum += t;
@@ -316,7 +345,7 @@ impl Walker<'_> {
             row.iter_mut().for_each(|a| *a = C64::new(0.0, 0.0));
         }
         for step in 0..len {
-            let v = lo + step as i64;
+            let v = start + dir * step as i64;
             for i in 0..inp.dirs.len() {
                 let s = self.lin[i][1] + inp.dirs[i][0] * v as f64;
                 let p = &mut self.powers[i];
@@ -339,7 +368,7 @@ impl Walker<'_> {
             let tabs = self.t[0].re.abs() + self.t[0].im.abs();
             let kf = step as f64;
             self.out.abs0 += tabs;
-            let wk = g0 * (x0 + kf);
+            let wk = g0 * (x0 + dirf * kf);
             let [c1, c2, c3] = inp.growth;
             let tgrow = tabs * (kf * (c1 + c2 * kf) + c3 * (used + wk * wk));
             for (mi, mo) in inp.monos.iter().enumerate() {
