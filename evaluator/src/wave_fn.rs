@@ -119,9 +119,10 @@ impl Evaluator<'_> {
     }
 
     pub(crate) fn region(&mut self, span: Span, args: &[Arg]) -> Result<Region, Fail> {
-        let axes: Vec<&Axis> =
-            args.iter().filter_map(|a| if let Arg::Axis(ax) = a { Some(ax) } else { None }).collect();
-        self.region_of(span, &axes, DEFAULT_SAMPLES)
+        // Fixed axes written `t = 0` inside a call are keyword arguments: read them too.
+        let axes = kelp_lang::ast::region_axes(args);
+        let refs: Vec<&Axis> = axes.iter().collect();
+        self.region_of(span, &refs, DEFAULT_SAMPLES)
     }
 
     /// The sample points of the axes; a range without `step` gets `default_n` points.
@@ -545,7 +546,7 @@ impl Evaluator<'_> {
                         reason: Some(reason),
                     });
                 }
-                if !args.iter().any(|a| matches!(a, Arg::Axis(_))) {
+                if kelp_lang::ast::region_axes(args).is_empty() {
                     return Err(fail(
                         Code::NotSupported,
                         wspan,

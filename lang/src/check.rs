@@ -589,13 +589,13 @@ impl Checker {
         let mut seen: HashMap<&str, Span> = HashMap::new();
         for ax in axes {
             let name = ax.name.name.as_str();
-            if !["x", "y", "t"].contains(&name) {
+            if !AXIS_NAMES.contains(&name) {
                 let d = self.error(
                     Code::UnknownAxis,
                     ax.name.span,
                     format!("`{name}` is not an axis; a region is over x, y and t"),
                 );
-                if let Some(s) = closest(name, ["x", "y", "t"]) {
+                if let Some(s) = closest(name, AXIS_NAMES) {
                     d.notes.push(format!("did you mean `{s}`?"));
                 }
             } else if let Some(prev) = seen.get(name) {
@@ -868,6 +868,10 @@ impl Checker {
                     }
                     npos += 1;
                 }
+                Arg::Keyword { name, .. } if takes_region && AXIS_NAMES.contains(&name.name.as_str()) => {
+                    // `t = 0`: a fixed axis; `check_region` reports an axis given twice (K507).
+                    axes.extend(a.as_axis());
+                }
                 Arg::Keyword { name, value } => {
                     if let Some(prev) = kw_spans.get(&name.name) {
                         let d = Diagnostic::error(
@@ -880,23 +884,29 @@ impl Checker {
                         continue;
                     }
                     kw_spans.insert(name.name.clone(), name.span);
-                    if takes_region && ["x", "y", "t"].contains(&name.name.as_str()) {
-                        axes.push(Axis { name: name.clone(), kind: AxisKind::Fixed(value.clone()), span: a.span() });
-                        continue;
-                    }
                     let k = self.infer(value);
                     match b.keywords.iter().position(|p| p.name == name.name) {
                         Some(j) => given[b.positional.len() + j] = Some((k, value.span)),
                         None => {
                             let mut cands: Vec<&str> = b.keywords.iter().map(|p| p.name).collect();
-                            if takes_region {
-                                cands.extend(["x", "y", "t"]);
-                            }
-                            let mut d = Diagnostic::error(
-                                Code::UnknownKeyword,
-                                name.span,
-                                format!("`{}` takes no argument `{}`", b.name, name.name),
-                            );
+                            // A function over a region: `z = 0` is most likely a misnamed axis.
+                            let mut d = if takes_region {
+                                cands.extend(AXIS_NAMES);
+                                Diagnostic::error(
+                                    Code::UnknownAxis,
+                                    name.span,
+                                    format!(
+                                        "`{}` is not an axis (a region is over x, y and t) nor an argument of `{}`",
+                                        name.name, b.name
+                                    ),
+                                )
+                            } else {
+                                Diagnostic::error(
+                                    Code::UnknownKeyword,
+                                    name.span,
+                                    format!("`{}` takes no argument `{}`", b.name, name.name),
+                                )
+                            };
                             d = match closest(&name.name, cands.iter().copied()) {
                                 Some(s) => d.with_note(format!("did you mean `{s}`?")),
                                 None => d.with_note(format!("usage: {}", b.signature)),
