@@ -499,33 +499,20 @@ impl Evaluator<'_> {
                     }
                 }
                 let region = self.region(span, args)?;
-                let (mut worst, mut scale, mut floor) = (0.0f64, 0.0f64, 0.0f64);
-                let mut at = (0.0, 0.0, 0.0);
+                let mut scan = crate::waves::residual::ResidualScan::default();
                 for &t in &region.t {
                     for &y in &region.y {
                         for &x in &region.x {
                             crate::limits::check().map_err(|m| fail(Code::BudgetExceeded, span, m))?;
                             let p = w.at(x, y, t).map_err(|m| fail(Code::EvalFailed, span, m))?;
-                            if p.kp.residual.norm() > worst {
-                                worst = p.kp.residual.norm();
-                                at = (x, y, t);
-                            }
-                            scale = scale.max(p.kp.scale);
-                            floor = floor.max(p.tau_relative_error);
+                            scan.add((x, y, t), &p);
                         }
                     }
                 }
-                let scaled = if scale > 0.0 { worst / scale } else { 0.0 };
                 Ok(Valued {
-                    value: Value::Num(Num::Real(scaled)),
-                    error_bound: 1e3 * floor.max(f64::EPSILON),
-                    reason: Some(format!(
-                        "largest |residual| {worst:.2e} at (x, y, t) = ({}, {}, {}) over {} points, divided by the largest term {scale:.3e}; KP form {KP_FORM}",
-                        crate::num::fmt_f64(at.0),
-                        crate::num::fmt_f64(at.1),
-                        crate::num::fmt_f64(at.2),
-                        region.points()
-                    )),
+                    value: Value::Num(Num::Real(scan.value())),
+                    error_bound: scan.error_bound(),
+                    reason: Some(format!("{}; KP form {KP_FORM}", scan.describe())),
                 })
             }
             _ => {
