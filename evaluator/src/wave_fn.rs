@@ -130,9 +130,10 @@ impl Evaluator<'_> {
         let mut r = Region { x: vec![0.0], y: vec![0.0], t: vec![0.0] };
         for ax in axes {
             let values = match &ax.kind {
-                AxisKind::Fixed(e) => vec![self.real(e, "an axis value")?],
+                AxisKind::Fixed(e) => vec![self.real(e, &format!("the value of axis `{}`", ax.name.name))?],
                 AxisKind::Range { lo, hi, step } => {
-                    let (a, b) = (self.real(lo, "a range end")?, self.real(hi, "a range end")?);
+                    let end = format!("an end of the range of `{}`", ax.name.name);
+                    let (a, b) = (self.real(lo, &end)?, self.real(hi, &end)?);
                     if !(b > a) {
                         return Err(fail(
                             Code::EvalFailed,
@@ -518,6 +519,9 @@ impl Evaluator<'_> {
             _ => {
                 // regular (a water wave is regular exactly when the wave it reads is)
                 let base = w.water().map_or(&*w, |water| &*water.inner);
+                let given = kelp_lang::ast::region_axes(args);
+                // Read a given region even where it is not needed, so a bad one is reported.
+                let region = if given.is_empty() { None } else { Some(self.region(span, args)?) };
                 if let WaveKind::Soliton(s) = &base.kind {
                     let reason = match s.negative_minor() {
                         Some(m) => format!(
@@ -533,14 +537,13 @@ impl Evaluator<'_> {
                         reason: Some(reason),
                     });
                 }
-                if kelp_lang::ast::region_axes(args).is_empty() {
+                let Some(region) = region else {
                     return Err(fail(
                         Code::NotSupported,
                         wspan,
                         "`regular` is decided exactly for solitons; for other waves give a region to sample",
                     ));
-                }
-                let region = self.region(span, args)?;
+                };
                 for &t in &region.t {
                     for &y in &region.y {
                         for &x in &region.x {

@@ -110,9 +110,8 @@ impl Settings {
     /// Sets a value after checking it against the setting's range; the error says why not.
     pub fn set(&mut self, name: &str, v: f64) -> Result<(), String> {
         let s = builtins::setting_named(name).ok_or_else(|| format!("there is no setting `{name}`"))?;
-        if !(v > s.min && v <= s.max) || (s.whole && v.fract() != 0.0) {
-            let what = if s.whole { "a whole number" } else { "a number" };
-            return Err(format!("`{name}` ({}) takes {what} above {} and at most {}", s.meaning, s.min, s.max));
+        if !s.allows(v) {
+            return Err(format!("`{name}` ({}) takes {}", s.meaning, s.range_text()));
         }
         self.values.insert(s.name, v);
         Ok(())
@@ -390,6 +389,22 @@ impl Checker {
     // ---- curves ----
 
     fn check_curve(&mut self, i: usize, lhs: &Expr, rhs: Option<&Expr>) {
+        // Coefficients obey the digit limit like every other literal (`max_digits`).
+        let max_digits = self.settings.get("max_digits") as usize;
+        let mut too_long = vec![];
+        for side in std::iter::once(lhs).chain(rhs) {
+            side.walk(&mut |e| {
+                if let ExprKind::Number(t) = &e.kind {
+                    if let Some(m) = crate::number::literal_error_with(t, max_digits) {
+                        too_long.push(Diagnostic::error(Code::NumberTooLarge, e.span, m));
+                    }
+                }
+            });
+        }
+        if !too_long.is_empty() {
+            self.diags.extend(too_long);
+            return;
+        }
         let fast = crate::small_poly::curve_poly(lhs, rhs).map(Ok);
         let poly = match fast.unwrap_or_else(|| self.exact_curve_poly(lhs, rhs)) {
             Ok(p) => p,

@@ -345,3 +345,52 @@ fn krichever_on_general_plane_curves_and_mismatched_data() {
     let bad = residual(&wave_from(tq.ctx.tau(), tk.u.clone(), tk.v.clone(), tk.w.clone()));
     assert!(bad > 1e-4, "another curve's U, V, W only reach {bad:.2e}");
 }
+
+/// The first "(x, y, t) = (...)" point and the first "s = ..." of a kp_residual reason.
+fn residual_point_and_s(why: &str) -> (String, f64) {
+    let at = why.split("(x, y, t) = (").nth(1).and_then(|r| r.split(')').next()).unwrap_or_else(|| panic!("{why}"));
+    let s = why.split(", s = ").nth(1).and_then(|r| r.split(')').next()).unwrap_or_else(|| panic!("{why}"));
+    (at.to_string(), s.trim().parse().unwrap_or_else(|_| panic!("{why}")))
+}
+
+/// Fixed axes written inside a call (`x = 0.35, t = 3` parse as keyword arguments) are where
+/// `kp_residual` and `regular` look; they were once dropped, so every such call looked at 0.
+#[test]
+fn fixed_axes_inside_calls_are_used() {
+    // kappa = (-1, 1), a = 1: u = 2 sech^2(x + t), the fixture's one-soliton closed form
+    // (tests/fixtures/gen/wave_refs.py, u = (k1 - k2)^2 / 2 sech^2((theta1 - theta2) / 2)).
+    // For f = 2 sech^2: f'' = 4 f - 3 f^2, f'^2 = 4 f^2 - 2 f^3, f'''' = 4 f'' - 6 (f'^2 + f f'')
+    // (from w'' = 4 w - 6 w^2 for w = sech^2; common practice, no source). u_yy = 0 and
+    // u_xt = u_xx, so the largest term is s = max(|f''''|, 6 f'^2, 6 |f f''|, 4 |f''|).
+    let s_at = |xi: f64| {
+        let f = 2.0 / xi.cosh().powi(2);
+        let f2 = 4.0 * f - 3.0 * f * f;
+        let f1sq = 4.0 * f * f - 2.0 * f * f * f;
+        let f4 = 4.0 * f2 - 6.0 * (f1sq + f * f2);
+        [f4.abs(), 6.0 * f1sq, 6.0 * (f * f2).abs(), 4.0 * f2.abs()].into_iter().fold(0.0, f64::max)
+    };
+    let src = "wave w = soliton(kappa = [-1, 1], a = [[1, 1]])\n\
+               let r = kp_residual(w, x = 0.35, t = 3)\n\
+               let r0 = kp_residual(w, t = 3)\n\
+               wave p = rational(partition = [1])\n\
+               let off_pole = regular(p, x = 0.35, y = 0, t = 0)\n\
+               let on_pole = regular(p, x in -1..1 step 0.5, y = 0, t = 0)\n";
+    let e = eval(src);
+    let get = |name: &str| &e.values.iter().find(|v| v.name == name).unwrap_or_else(|| panic!("{name}")).value;
+    for (name, xi, point) in [("r", 3.35, "0.35, 0.0, 3.0"), ("r0", 3.0, "0.0, 0.0, 3.0")] {
+        let v = get(name);
+        let why = v.reason.as_deref().unwrap();
+        let (at, s) = residual_point_and_s(why);
+        assert_eq!(at, point, "{why}");
+        // The reason prints s to 4 digits.
+        assert!((s - s_at(xi)).abs() <= 1e-3 * s_at(xi), "{name}: s = {s}, closed form {}", s_at(xi));
+        // The soliton solves KP: the relative residual is at rounding level.
+        match &v.value {
+            Value::Num(n) => assert!(n.to_real().unwrap() < 1e-12, "{name}: {why}"),
+            other => panic!("{other}"),
+        }
+    }
+    // tau = s_(1) = x (Schur polynomial of (1); common practice): nonzero at x = 0.35, zero at 0.
+    assert!(matches!(get("off_pole").value, Value::Bool(true)), "{:?}", get("off_pole").reason);
+    assert!(matches!(get("on_pole").value, Value::Bool(false)), "{:?}", get("on_pole").reason);
+}

@@ -95,3 +95,40 @@ fn show_point((x, y, t): (f64, f64, f64)) -> String {
     use crate::num::fmt_f64;
     format!("({}, {}, {})", fmt_f64(x), fmt_f64(y), fmt_f64(t))
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::waves::series::KpPoint;
+    use num_complex::Complex64 as C64;
+
+    fn point(residual: f64, scale: f64, size: f64) -> WavePoint {
+        WavePoint {
+            kp: KpPoint { u: C64::new(0.0, 0.0), residual: C64::new(residual, 0.0), scale, size },
+            tau_relative_error: 0.0,
+        }
+    }
+
+    // A point near a pole (terms 1e12, residual 0) must not hide a residual of 1e-3 of the
+    // terms at another point: the old quotient by the region's largest term gave 1e-15 here
+    // (arithmetic; common practice, no source).
+    #[test]
+    fn a_near_pole_does_not_hide_a_residual_elsewhere() {
+        let mut scan = ResidualScan::default();
+        scan.add((0.0, 0.0, 0.0), &point(0.0, 1e12, 1e12));
+        scan.add((1.0, 0.0, 0.0), &point(1e-3, 1.0, 1.0));
+        assert_eq!(scan.value(), 1e-3);
+        assert_eq!(scan.worst_relative.at, (1.0, 0.0, 0.0));
+        assert_eq!(scan.worst_absolute.absolute, 1e-3);
+        let why = scan.describe();
+        assert!(why.contains("|R| / m = 1.00e-3") && why.contains("over 2 points"), "{why}");
+    }
+
+    // Where every term is 0 the residual (their sum) is 0.
+    #[test]
+    fn a_flat_point_has_residual_zero() {
+        let mut scan = ResidualScan::default();
+        scan.add((0.0, 0.0, 0.0), &point(0.0, 0.0, 0.0));
+        assert_eq!(scan.value(), 0.0);
+    }
+}
