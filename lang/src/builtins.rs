@@ -200,7 +200,7 @@ pub const BUILTINS: &[Builtin] = &[
         region: RegionUse::Required,
         yields: Yields::Number,
         signature: "kp_residual(W, x in A..B, y in A..B, t = T)",
-        summary: "Largest scaled residual of the KP equation over the region's sample points.",
+        summary: "Largest KP residual over the region's sample points, relative to the size of its terms at the same point (the message states the absolute residual and both scales).",
     },
     Builtin {
         name: "regular",
