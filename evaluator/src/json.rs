@@ -112,6 +112,10 @@ fn valued_json(name: &str, v: &Valued) -> J {
     if v.error_bound > 0.0 {
         o["error_bound"] = finite(v.error_bound);
     }
+    // What the number means (the scales of a residual, the source of a wave, ...): the hover text.
+    if let Some(r) = &v.reason {
+        o["reason"] = json!(r);
+    }
     o
 }
 

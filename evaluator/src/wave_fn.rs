@@ -119,9 +119,10 @@ impl Evaluator<'_> {
     }
 
     pub(crate) fn region(&mut self, span: Span, args: &[Arg]) -> Result<Region, Fail> {
-        let axes: Vec<&Axis> =
-            args.iter().filter_map(|a| if let Arg::Axis(ax) = a { Some(ax) } else { None }).collect();
-        self.region_of(span, &axes, DEFAULT_SAMPLES)
+        // Fixed axes written `t = 0` inside a call are keyword arguments: read them too.
+        let axes = kelp_lang::ast::region_axes(args);
+        let refs: Vec<&Axis> = axes.iter().collect();
+        self.region_of(span, &refs, DEFAULT_SAMPLES)
     }
 
     /// The sample points of the axes; a range without `step` gets `default_n` points.
@@ -129,9 +130,10 @@ impl Evaluator<'_> {
         let mut r = Region { x: vec![0.0], y: vec![0.0], t: vec![0.0] };
         for ax in axes {
             let values = match &ax.kind {
-                AxisKind::Fixed(e) => vec![self.real(e, "an axis value")?],
+                AxisKind::Fixed(e) => vec![self.real(e, &format!("the value of axis `{}`", ax.name.name))?],
                 AxisKind::Range { lo, hi, step } => {
-                    let (a, b) = (self.real(lo, "a range end")?, self.real(hi, "a range end")?);
+                    let end = format!("an end of the range of `{}`", ax.name.name);
+                    let (a, b) = (self.real(lo, &end)?, self.real(hi, &end)?);
                     if !(b > a) {
                         return Err(fail(
                             Code::EvalFailed,
@@ -498,38 +500,28 @@ impl Evaluator<'_> {
                     }
                 }
                 let region = self.region(span, args)?;
-                let (mut worst, mut scale, mut floor) = (0.0f64, 0.0f64, 0.0f64);
-                let mut at = (0.0, 0.0, 0.0);
+                let mut scan = crate::waves::residual::ResidualScan::default();
                 for &t in &region.t {
                     for &y in &region.y {
                         for &x in &region.x {
                             crate::limits::check().map_err(|m| fail(Code::BudgetExceeded, span, m))?;
                             let p = w.at(x, y, t).map_err(|m| fail(Code::EvalFailed, span, m))?;
-                            if p.kp.residual.norm() > worst {
-                                worst = p.kp.residual.norm();
-                                at = (x, y, t);
-                            }
-                            scale = scale.max(p.kp.scale);
-                            floor = floor.max(p.tau_relative_error);
+                            scan.add((x, y, t), &p);
                         }
                     }
                 }
-                let scaled = if scale > 0.0 { worst / scale } else { 0.0 };
                 Ok(Valued {
-                    value: Value::Num(Num::Real(scaled)),
-                    error_bound: 1e3 * floor.max(f64::EPSILON),
-                    reason: Some(format!(
-                        "largest |residual| {worst:.2e} at (x, y, t) = ({}, {}, {}) over {} points, divided by the largest term {scale:.3e}; KP form {KP_FORM}",
-                        crate::num::fmt_f64(at.0),
-                        crate::num::fmt_f64(at.1),
-                        crate::num::fmt_f64(at.2),
-                        region.points()
-                    )),
+                    value: Value::Num(Num::Real(scan.value())),
+                    error_bound: scan.error_bound(),
+                    reason: Some(format!("{}; KP form {KP_FORM}", scan.describe())),
                 })
             }
             _ => {
                 // regular (a water wave is regular exactly when the wave it reads is)
                 let base = w.water().map_or(&*w, |water| &*water.inner);
+                let given = kelp_lang::ast::region_axes(args);
+                // Read a given region even where it is not needed, so a bad one is reported.
+                let region = if given.is_empty() { None } else { Some(self.region(span, args)?) };
                 if let WaveKind::Soliton(s) = &base.kind {
                     let reason = match s.negative_minor() {
                         Some(m) => format!(
@@ -545,14 +537,13 @@ impl Evaluator<'_> {
                         reason: Some(reason),
                     });
                 }
-                if !args.iter().any(|a| matches!(a, Arg::Axis(_))) {
+                let Some(region) = region else {
                     return Err(fail(
                         Code::NotSupported,
                         wspan,
                         "`regular` is decided exactly for solitons; for other waves give a region to sample",
                     ));
-                }
-                let region = self.region(span, args)?;
+                };
                 for &t in &region.t {
                     for &y in &region.y {
                         for &x in &region.x {

@@ -128,6 +128,9 @@ pub enum Arg {
     Axis(Axis),
 }
 
+/// The names a region's axes may have.
+pub const AXIS_NAMES: [&str; 3] = ["x", "y", "t"];
+
 impl Arg {
     pub fn span(&self) -> Span {
         match self {
@@ -136,6 +139,24 @@ impl Arg {
             Arg::Axis(a) => a.span,
         }
     }
+
+    /// This argument as a region axis, for a function that takes a region: a range, or a
+    /// fixed axis. Inside a call `t = 0` parses as a keyword argument (the grammar cannot
+    /// tell it from `shift = ...`), so a keyword named x, y or t is read as `AxisKind::Fixed`.
+    pub fn as_axis(&self) -> Option<Axis> {
+        match self {
+            Arg::Axis(a) => Some(a.clone()),
+            Arg::Keyword { name, value } if AXIS_NAMES.contains(&name.name.as_str()) => {
+                Some(Axis { name: name.clone(), kind: AxisKind::Fixed(value.clone()), span: self.span() })
+            }
+            _ => None,
+        }
+    }
+}
+
+/// The region axes among a call's arguments, in order (see [`Arg::as_axis`]).
+pub fn region_axes(args: &[Arg]) -> Vec<Axis> {
+    args.iter().filter_map(Arg::as_axis).collect()
 }
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]

@@ -200,7 +200,7 @@ pub const BUILTINS: &[Builtin] = &[
         region: RegionUse::Required,
         yields: Yields::Number,
         signature: "kp_residual(W, x in A..B, y in A..B, t = T)",
-        summary: "Largest scaled residual of the KP equation over the region's sample points.",
+        summary: "Largest KP residual over the region's sample points, relative to the size of its terms at the same point (the message states the absolute residual and both scales).",
     },
     Builtin {
         name: "regular",
@@ -262,34 +262,59 @@ pub fn lookup(name: &str) -> Option<&'static Builtin> {
     BUILTINS.iter().find(|b| b.name == name)
 }
 
-/// A setting `set` accepts: its default, the range a value must lie in (open below,
-/// closed above), whether it counts something (a whole number), and its meaning.
+/// A setting `set` accepts: its default, the range a value must lie in (open below for
+/// limits, closed for tolerances), whether it counts something (a whole number), and its
+/// meaning.
 #[derive(Clone, Copy, Debug)]
 pub struct Setting {
     pub name: &'static str,
     pub default: f64,
     pub min: f64,
     pub max: f64,
+    /// Whether `min` itself is allowed.
+    pub min_included: bool,
     pub whole: bool,
     pub meaning: &'static str,
 }
 
+impl Setting {
+    pub fn allows(&self, v: f64) -> bool {
+        let above = if self.min_included { v >= self.min } else { v > self.min };
+        above && v <= self.max && !(self.whole && v.fract() != 0.0)
+    }
+
+    /// The allowed values in words, for diagnostics.
+    pub fn range_text(&self) -> String {
+        let what = if self.whole { "a whole number" } else { "a number" };
+        if self.min_included {
+            format!("{what} from {:e} to {:e}", self.min, self.max)
+        } else {
+            format!("{what} above {} and at most {}", self.min, self.max)
+        }
+    }
+}
+
 const fn setting(name: &'static str, default: f64, min: f64, max: f64, whole: bool, meaning: &'static str) -> Setting {
-    Setting { name, default, min, max, whole, meaning }
+    Setting { name, default, min, max, min_included: false, whole, meaning }
+}
+
+/// The finest tolerance and accuracy a setting may ask for: a few units of double
+/// precision's rounding (2.2e-16) on values of size about 1, which theta values, periods and
+/// waves can reach; finer ones could only end in undecided claims.
+pub const FINEST: f64 = 1e-15;
+/// The coarsest: above this an absolute tolerance stops telling values of size 1 apart
+/// (and the Riemann-matrix and theta checks that use it would accept anything).
+pub const COARSEST: f64 = 0.1;
+
+const fn tolerance_setting(name: &'static str, default: f64, meaning: &'static str) -> Setting {
+    Setting { name, default, min: FINEST, max: COARSEST, min_included: true, whole: false, meaning }
 }
 
 /// Every setting. The limits can also be given on the command line (`--limit NAME=VALUE`),
 /// which overrides the file.
 pub const SETTINGS: &[Setting] = &[
-    setting("tolerance", 1e-10, 0.0, 1.0, false, "default absolute tolerance of `==` between numerical values"),
-    setting(
-        "accuracy",
-        1e-12,
-        0.0,
-        1.0,
-        false,
-        "requested absolute accuracy of numerical results (theta values, periods)",
-    ),
+    tolerance_setting("tolerance", 1e-10, "default absolute tolerance of `==` between numerical values"),
+    tolerance_setting("accuracy", 1e-12, "requested absolute accuracy of numerical results (theta values, periods)"),
     setting("max_points", 4e6, 0.0, 4e7, true, "largest number of sample points of one region"),
     setting("max_lattice_points", 2e7, 0.0, 2e8, true, "largest estimated number of lattice points of one theta value"),
     setting(

@@ -110,9 +110,8 @@ impl Settings {
     /// Sets a value after checking it against the setting's range; the error says why not.
     pub fn set(&mut self, name: &str, v: f64) -> Result<(), String> {
         let s = builtins::setting_named(name).ok_or_else(|| format!("there is no setting `{name}`"))?;
-        if !(v > s.min && v <= s.max) || (s.whole && v.fract() != 0.0) {
-            let what = if s.whole { "a whole number" } else { "a number" };
-            return Err(format!("`{name}` ({}) takes {what} above {} and at most {}", s.meaning, s.min, s.max));
+        if !s.allows(v) {
+            return Err(format!("`{name}` ({}) takes {}", s.meaning, s.range_text()));
         }
         self.values.insert(s.name, v);
         Ok(())
@@ -390,6 +389,22 @@ impl Checker {
     // ---- curves ----
 
     fn check_curve(&mut self, i: usize, lhs: &Expr, rhs: Option<&Expr>) {
+        // Coefficients obey the digit limit like every other literal (`max_digits`).
+        let max_digits = self.settings.get("max_digits") as usize;
+        let mut too_long = vec![];
+        for side in std::iter::once(lhs).chain(rhs) {
+            side.walk(&mut |e| {
+                if let ExprKind::Number(t) = &e.kind {
+                    if let Some(m) = crate::number::literal_error_with(t, max_digits) {
+                        too_long.push(Diagnostic::error(Code::NumberTooLarge, e.span, m));
+                    }
+                }
+            });
+        }
+        if !too_long.is_empty() {
+            self.diags.extend(too_long);
+            return;
+        }
         let fast = crate::small_poly::curve_poly(lhs, rhs).map(Ok);
         let poly = match fast.unwrap_or_else(|| self.exact_curve_poly(lhs, rhs)) {
             Ok(p) => p,
@@ -589,13 +604,13 @@ impl Checker {
         let mut seen: HashMap<&str, Span> = HashMap::new();
         for ax in axes {
             let name = ax.name.name.as_str();
-            if !["x", "y", "t"].contains(&name) {
+            if !AXIS_NAMES.contains(&name) {
                 let d = self.error(
                     Code::UnknownAxis,
                     ax.name.span,
                     format!("`{name}` is not an axis; a region is over x, y and t"),
                 );
-                if let Some(s) = closest(name, ["x", "y", "t"]) {
+                if let Some(s) = closest(name, AXIS_NAMES) {
                     d.notes.push(format!("did you mean `{s}`?"));
                 }
             } else if let Some(prev) = seen.get(name) {
@@ -868,6 +883,10 @@ impl Checker {
                     }
                     npos += 1;
                 }
+                Arg::Keyword { name, .. } if takes_region && AXIS_NAMES.contains(&name.name.as_str()) => {
+                    // `t = 0`: a fixed axis; `check_region` reports an axis given twice (K507).
+                    axes.extend(a.as_axis());
+                }
                 Arg::Keyword { name, value } => {
                     if let Some(prev) = kw_spans.get(&name.name) {
                         let d = Diagnostic::error(
@@ -880,23 +899,29 @@ impl Checker {
                         continue;
                     }
                     kw_spans.insert(name.name.clone(), name.span);
-                    if takes_region && ["x", "y", "t"].contains(&name.name.as_str()) {
-                        axes.push(Axis { name: name.clone(), kind: AxisKind::Fixed(value.clone()), span: a.span() });
-                        continue;
-                    }
                     let k = self.infer(value);
                     match b.keywords.iter().position(|p| p.name == name.name) {
                         Some(j) => given[b.positional.len() + j] = Some((k, value.span)),
                         None => {
                             let mut cands: Vec<&str> = b.keywords.iter().map(|p| p.name).collect();
-                            if takes_region {
-                                cands.extend(["x", "y", "t"]);
-                            }
-                            let mut d = Diagnostic::error(
-                                Code::UnknownKeyword,
-                                name.span,
-                                format!("`{}` takes no argument `{}`", b.name, name.name),
-                            );
+                            // A function over a region: `z = 0` is most likely a misnamed axis.
+                            let mut d = if takes_region {
+                                cands.extend(AXIS_NAMES);
+                                Diagnostic::error(
+                                    Code::UnknownAxis,
+                                    name.span,
+                                    format!(
+                                        "`{}` is not an axis (a region is over x, y and t) nor an argument of `{}`",
+                                        name.name, b.name
+                                    ),
+                                )
+                            } else {
+                                Diagnostic::error(
+                                    Code::UnknownKeyword,
+                                    name.span,
+                                    format!("`{}` takes no argument `{}`", b.name, name.name),
+                                )
+                            };
                             d = match closest(&name.name, cands.iter().copied()) {
                                 Some(s) => d.with_note(format!("did you mean `{s}`?")),
                                 None => d.with_note(format!("usage: {}", b.signature)),

@@ -122,3 +122,54 @@ fn every_code_is_documented_in_the_language_reference() {
         assert!(reference.contains(&format!("`{}`", code.as_str())), "{} is missing from LANGUAGE.md", code.as_str());
     }
 }
+
+/// Axes written inside a call: `t = 0` is a fixed axis (it parses as a keyword argument), so
+/// an axis given twice either way is K507 at the second one and an unknown name is K506.
+#[test]
+fn fixed_axes_inside_calls() {
+    let waves = "wave w = rational(partition = [1])\n";
+    expect_one(&format!("{waves}expect kp_residual(w, x = 1, x = 2) < 1\n"), Code::DuplicateAxis, "x");
+    let c = check(&format!("{waves}expect kp_residual(w, x in 0..1, x = 2) < 1\n"));
+    let d = c.diagnostics.iter().find(|d| d.code == Code::DuplicateAxis).expect("K507");
+    assert_eq!(d.labels.len(), 1, "the first `x` is related information");
+    expect_one(&format!("{waves}expect kp_residual(w, x in 0..1, z = 2) < 1\n"), Code::UnknownAxis, "z");
+    expect_one(&format!("{waves}expect regular(w, x in 0..1, tt = 2)\n"), Code::UnknownAxis, "tt");
+    // Functions without a region keep K204 for an unknown keyword.
+    expect_one(&format!("{waves}let v = value(w, 1, 2, 3, x = 1)\n"), Code::UnknownKeyword, "x");
+    // A fixed axis alone is a region.
+    assert!(check(&format!("{waves}expect kp_residual(w, x = 0.35, t = 3) < 1\n")).diagnostics.is_empty());
+}
+
+/// `tolerance` and `accuracy` lie in [1e-15, 0.1] (the finest double precision reaches on
+/// values of size 1, the coarsest that still tells such values apart); both ends are allowed.
+#[test]
+fn tolerance_and_accuracy_stay_within_reach() {
+    for bad in ["1e-20", "1e-16", "1", "0.5", "0.10000001"] {
+        for name in ["tolerance", "accuracy"] {
+            expect_one(&format!("set {name} = {bad}\n"), Code::BadSettingValue, bad);
+        }
+    }
+    let c = check("set accuracy = 1e-20\n");
+    assert!(c.diagnostics[0].message.contains("from 1e-15 to 1e-1"), "{}", c.diagnostics[0].message);
+    for good in ["1e-15", "0.1", "1e-10"] {
+        for name in ["tolerance", "accuracy"] {
+            let c = check(&format!("set {name} = {good}\n"));
+            assert!(c.diagnostics.is_empty(), "{name} = {good}: {:?}", c.diagnostics);
+        }
+    }
+    // `within` is a claim's own business: a tolerance finer than double precision is not
+    // refused (the claim is then decided or undecided on the error bounds).
+    assert!(check("expect 2^(1/2) == 1.4142135623730951 within 1e-20\n").diagnostics.is_empty());
+}
+
+/// Curve coefficients obey `max_digits` like every other literal.
+#[test]
+fn curve_coefficients_obey_the_digit_limit() {
+    let long = "1".repeat(10_001);
+    expect_one(&format!("curve c: y^2 = x^3 + {long}\n"), Code::NumberTooLarge, &long);
+    expect_one(&format!("curve c: {long}*y^2 = x^3 + 1\n"), Code::NumberTooLarge, &long);
+    expect_one("set max_digits = 5\ncurve c: y^2 = x^3 + 123456\n", Code::NumberTooLarge, "123456");
+    expect_one("set max_digits = 5\ncurve c: y^2 = x^3 + 1.23456\n", Code::NumberTooLarge, "1.23456");
+    assert!(check("set max_digits = 6\ncurve c: y^2 = x^3 + 123456\n").diagnostics.is_empty());
+    assert!(check(&format!("curve c: y^2 = x^3 + {}\n", "1".repeat(10_000))).diagnostics.is_empty());
+}

@@ -235,4 +235,12 @@ fn limits_from_the_command_line() {
     assert!((out.clone() + &err).contains("K605"), "{out}{err}");
     assert_eq!(kelp(&["check", "--limit", "max_pints=50", p]).0, 2);
     assert_eq!(kelp(&["check", "--limit", "max_degree=99", p]).0, 2);
+    // Tolerances past what double precision reaches, or too coarse to tell values of size 1
+    // apart, are refused with the allowed range; the ends themselves are allowed.
+    for bad in ["accuracy=1e-20", "tolerance=1", "accuracy=1"] {
+        let (code, out, err) = kelp(&["check", "--limit", bad, p]);
+        assert_eq!(code, 2, "{bad}: {out}{err}");
+        assert!(err.contains("from 1e-15 to 1e-1"), "{bad}: {err}");
+    }
+    assert_eq!(kelp(&["check", "--limit", "accuracy=1e-15", "--limit", "tolerance=0.1", p]).0, 0);
 }

@@ -51,7 +51,7 @@ fn numerical_claims_use_the_tolerance() {
     assert_eq!(r.passed, vec![Some(true), Some(false)]);
     assert!(r.details[1].contains("difference 1.000e-1"), "{}", r.details[1]);
     // The file-wide tolerance applies without `within`.
-    let r = run("set tolerance = 0.5\nexpect 1.0 + 0.3i == 1\n");
+    let r = run("set tolerance = 0.1\nexpect 1.0 + 0.03i == 1\n");
     assert_eq!(r.passed, vec![Some(true)]);
 }
 
@@ -333,4 +333,29 @@ fn literal_digits_follow_max_digits() {
     assert!(!allowed.has_errors(), "{:?}", allowed.diagnostics);
     let cli = kelp_lang::check::check_with(&format!("let a = {long}\n"), &[("max_digits".into(), 20_000.0)]);
     assert!(!cli.has_errors(), "{:?}", cli.diagnostics);
+}
+
+/// A fixed axis must be real (K301 at the value), inside a call as in a range; and the
+/// residual's message states the absolute residual and both scales it is relative to.
+#[test]
+fn fixed_axes_are_real_and_residuals_state_their_scales() {
+    let w = "wave w = soliton(kappa = [-1, 1], a = [[1, 1]])\n";
+    for (claim, at) in [
+        ("expect kp_residual(w, x = 0.35i, t = 0) < 1\n", "0.35i"),
+        ("expect kp_residual(w, x in -1..1, t = 2 + 1i) < 1\n", "2 + 1i"),
+        ("expect regular(w, x in -1..1i)\n", "1i"),
+        ("wave p = rational(partition = [1])\nexpect regular(p, y = 1i)\n", "1i"),
+    ] {
+        let src = format!("{w}{claim}");
+        let e = evaluated(&src);
+        let d = e.diagnostics.iter().find(|d| d.code == Code::WrongKind).unwrap_or_else(|| panic!("{claim}"));
+        assert_eq!(&src[d.span.range()], at, "{claim}");
+        assert_eq!(e.expectations[0].passed, None, "{claim}");
+    }
+    // u = 2 sech^2(x + t) solves KP (tests/fixtures/gen/wave_refs.py's closed form).
+    let r = run(&format!("{w}expect kp_residual(w, x in -1..1, t = 3) < 1e-10\n"));
+    assert_eq!(r.passed, vec![Some(true)], "{:?}", r.messages);
+    for part in ["largest relative residual |R| / m = ", "largest absolute residual |R| = ", ", s = ", "m = "] {
+        assert!(r.details[0].contains(part), "{part}: {}", r.details[0]);
+    }
 }

@@ -187,3 +187,22 @@ fn a_time_range_becomes_an_animation() {
     assert!((brightest[0] as i64 - 310).abs() <= 3, "{brightest:?}");
     assert!(brightest.windows(2).all(|w| w[1] < w[0]), "the crest moves toward -x: {brightest:?}");
 }
+
+/// Every axis fixed: one sample at (0.35, 0, 3), the value there and not at 0.
+#[test]
+fn a_sample_at_one_fixed_point() {
+    let d = dir("fixed");
+    let file = d.join("point.kelp");
+    std::fs::write(
+        &file,
+        "wave front = soliton(kappa = [-1, 1], a = [[1, 1]])\nsample front over x = 0.35, t = 3 to \"p.csv\"\n",
+    )
+    .unwrap();
+    let (code, out, err) = kelp(&["run", file.to_str().unwrap()]);
+    assert_eq!(code, 0, "{out}{err}");
+    let csv = std::fs::read_to_string(d.join("p.csv")).unwrap();
+    let rows: Vec<Vec<f64>> = csv.lines().skip(1).map(|l| l.split(',').map(|s| s.parse().unwrap()).collect()).collect();
+    assert_eq!(rows.len(), 1, "{csv}");
+    assert_eq!(&rows[0][..3], &[0.35, 0.0, 3.0]);
+    assert!((rows[0][3] - one_soliton(0.35, 3.0)).abs() < 1e-13, "{csv}");
+}

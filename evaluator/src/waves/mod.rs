@@ -5,6 +5,7 @@
 
 pub mod krichever;
 pub mod rational;
+pub mod residual;
 pub mod series;
 pub mod soliton;
 pub mod theta_wave;
@@ -60,10 +61,10 @@ impl Wave {
                 return Ok(p);
             }
         };
-        let f = s
-            .log_normalised()
-            .ok_or_else(|| format!("tau vanishes at (x, y, t) = ({x}, {y}, {t}): u is singular there"))?;
-        Ok(WavePoint { kp: kp_point(&f, c), tau_relative_error: err })
+        let singular = || format!("tau vanishes at (x, y, t) = ({x}, {y}, {t}): u is singular there");
+        let f = s.log_normalised().ok_or_else(singular)?;
+        let m = s.log_majorant().ok_or_else(singular)?;
+        Ok(WavePoint { kp: kp_point(&f, &m, c), tau_relative_error: err })
     }
 
     /// u alone at a point: u = 2 (tau_xx / tau - (tau_x / tau)^2) + c from the x-jet of tau,

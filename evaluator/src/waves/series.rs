@@ -102,6 +102,26 @@ impl Series {
         Some(out)
     }
 
+    /// A coefficientwise majorant of [`Series::log_normalised`]: -log(1 - |e|) = sum |e|^k / k
+    /// with |e| the moduli of S / s0 - 1. Rounding in log S is relative to these sizes (the
+    /// terms of its coefficients before they cancel), so they are what a residual computed
+    /// from log S can be compared with. None when s0 is zero.
+    pub fn log_majorant(&self) -> Option<Series> {
+        let s0 = self.0[0];
+        if s0.norm() == 0.0 || !s0.re.is_finite() || !s0.im.is_finite() {
+            return None;
+        }
+        let mut e = Series(self.0.iter().map(|v| C64::new((v / s0).norm(), 0.0)).collect());
+        e.0[0] = C64::new(0.0, 0.0);
+        let mut out = Series::zero();
+        let mut power = e.clone();
+        for k in 1..=6 {
+            out.add_scaled(C64::new(1.0 / k as f64, 0.0), &power);
+            power = power.mul(&e);
+        }
+        Some(out)
+    }
+
     pub fn get(&self, a: u32, b: u32, c: u32) -> C64 {
         self.0[index(a, b, c)]
     }
@@ -118,9 +138,15 @@ pub struct KpPoint {
     pub residual: C64,
     /// The largest of |3 u_yy|, |u_xxxx|, |6 u_x^2|, |6 u u_xx|, |4 u_xt|.
     pub scale: f64,
+    /// The largest of the same five terms computed from [`Series::log_majorant`] (and |c|):
+    /// the sizes the computation of the residual works at, so its rounding is relative to
+    /// this, and it stays away from 0 where the wave is flat (there `scale` is itself at
+    /// rounding level). At least `scale`.
+    pub size: f64,
 }
 
-pub fn kp_point(f: &Series, c: C64) -> KpPoint {
+/// The five terms of the residual from the Taylor coefficients of F = log tau.
+fn kp_terms(f: &Series, c: C64) -> (C64, [C64; 5]) {
     let d = |a: u32, b: u32, cc: u32| f.get(a, b, cc) * fact(a) * fact(b) * fact(cc);
     let u = 2.0 * d(2, 0, 0) + c;
     let ux = 2.0 * d(3, 0, 0);
@@ -128,8 +154,19 @@ pub fn kp_point(f: &Series, c: C64) -> KpPoint {
     let uxxxx = 2.0 * d(6, 0, 0);
     let uyy = 2.0 * d(2, 2, 0);
     let uxt = 2.0 * d(3, 0, 1);
-    let terms = [3.0 * uyy, uxxxx, 6.0 * ux * ux, 6.0 * u * uxx, -4.0 * uxt];
-    KpPoint { u, residual: terms.iter().sum(), scale: terms.iter().map(|v| v.norm()).fold(0.0, f64::max) }
+    (u, [3.0 * uyy, uxxxx, 6.0 * ux * ux, 6.0 * u * uxx, -4.0 * uxt])
+}
+
+fn largest(terms: &[C64]) -> f64 {
+    terms.iter().map(|v| v.norm()).fold(0.0, f64::max)
+}
+
+/// `majorant` is [`Series::log_majorant`] of the same tau series as `f`.
+pub fn kp_point(f: &Series, majorant: &Series, c: C64) -> KpPoint {
+    let (u, terms) = kp_terms(f, c);
+    let (_, sizes) = kp_terms(majorant, C64::new(c.norm(), 0.0));
+    let scale = largest(&terms);
+    KpPoint { u, residual: terms.iter().sum(), scale, size: largest(&sizes).max(scale) }
 }
 
 #[cfg(test)]
