@@ -194,6 +194,11 @@ pub fn lex(src: &str) -> (Vec<(Token<'_>, Span)>, Vec<Diagnostic>) {
     let mut out: Vec<(Token, Span)> = Vec::with_capacity(src.len() / 2 + 16);
     let mut diags = Vec::new();
     let mut lexer = Token::lexer(src);
+    // A UTF-8 byte-order mark opening the file is not text (editors on some systems write
+    // one); byte offsets stay those of the whole file.
+    if src.starts_with('\u{FEFF}') {
+        lexer.bump('\u{FEFF}'.len_utf8());
+    }
     while let Some(res) = lexer.next() {
         let span: Span = lexer.span().into();
         match res {
@@ -237,6 +242,17 @@ mod tests {
 
     fn kinds(src: &str) -> Vec<Token<'_>> {
         lex(src).0.into_iter().map(|(t, _)| t).collect()
+    }
+
+    #[test]
+    fn a_leading_byte_order_mark_is_not_text() {
+        // U+FEFF at the start of a UTF-8 file is a byte-order mark (Unicode Standard,
+        // sec. 23.8; from memory); elsewhere it stays an unexpected character.
+        let (toks, diags) = lex("\u{FEFF}expect 1 == 1");
+        assert!(diags.is_empty(), "{diags:?}");
+        assert_eq!(toks[0].0, Token::Expect);
+        assert_eq!(toks[0].1.start, 3, "offsets stay those of the whole file");
+        assert!(!lex("expect 1 \u{FEFF}== 1").1.is_empty());
     }
 
     #[test]
