@@ -164,6 +164,10 @@ pub struct ThetaContext {
     /// Cholesky backward error in units of u, ||C^-1||_2 (bounded by the Frobenius norm),
     /// ||Y||_F, ||C||_F and ||U^-1||_F.
     kappa_c: f64,
+    /// The tau-only part of the rounding growth (see `rounding.rs`) and alpha_j.
+    growth_shared: f64,
+    growth_w2: f64,
+    alpha: Vec<f64>,
     chol_err: f64,
     cinv_norm: f64,
     y_frob: f64,
@@ -254,7 +258,11 @@ impl ThetaContext {
         }
         let tables = sum::Tables::new(&taur, half);
         let uinv_frob = uinv.map(|v| v as f64).norm();
+        let (growth_shared, growth_w2, alpha) = Self::tau_growth(g, &taur, &re, &u, &yred_inv_diag);
         Ok(ThetaContext {
+            growth_shared,
+            growth_w2,
+            alpha,
             max_points: crate::limits::current().max_lattice_points,
             g,
             tau,
@@ -539,7 +547,7 @@ impl ThetaContext {
         });
         growth.per_w2 += input_w2;
         // lin = dir_const + sum_j rdirs_j v_j with |v_j| <= h_j, each part itself rounded.
-        let dir_err: Vec<f64> = rdirs
+        let dir_err = rdirs
             .iter()
             .zip(&dir_const)
             .map(|(d, c)| {
@@ -547,7 +555,8 @@ impl ThetaContext {
                     * U
                     * (c.norm() + (0..g).map(|j| (d[j].re.abs() + d[j].im.abs()) * need[j] as f64).sum::<f64>())
             })
-            .collect();
+            .fold(0.0, f64::max);
+        let orders: Vec<u32> = monos.iter().map(|m| m.iter().sum()).collect();
         let out = sum::run(&sum::SumInput {
             tables,
             c: &self.c,
@@ -560,7 +569,8 @@ impl ThetaContext {
             dir_const: &dir_const,
             monos,
             growth: [growth.per_step, growth.per_step2, growth.per_w2],
-            dir_err: &dir_err,
+            dir_err,
+            orders: &orders,
         });
         growth.max_line = out.max_line as f64;
 

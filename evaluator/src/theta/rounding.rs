@@ -42,14 +42,17 @@
 //!
 //! Derivative weights prod (2 pi i m.d_i)^e_i are formed from sums s_i that can cancel, so
 //! their rounding is bounded absolutely: |s_i| carries at most d_i = 2 (g + 2) u (|const| +
-//! sum_j |d'_ij| h_j), and prod (|s_i| + d_i)^e_i - prod |s_i|^e_i bounds the weight's
-//! error (summed term by term with the term's modulus).
+//! sum_j |d'_ij| h_j), and prod (|s_i| + d_i)^e_i - prod |s_i|^e_i <= k d (sigma + d)^(k-1)
+//! (mean value theorem; k the total order, d = max d_i, sigma = sum |s_i|) bounds the
+//! weight's error (summed term by term with the term's modulus).
 //!
 //! Inputs that are themselves uncertain (tau and z out of a computation, norms E and e_z,
 //! see `InputErrors`) move a term's exponent by pi |m^T E m| + 2 pi |m.e_z|, split the same
 //! way into a constant and a multiple of |w|^2.
 
 use super::ThetaContext;
+use nalgebra::DMatrix;
+use num_complex::Complex64 as C64;
 
 /// A term's relative rounding in units of u: `shared` + `per_step` k + `per_step2` k^2
 /// for the term k steps into its line (k < `max_line`).
@@ -95,15 +98,22 @@ impl ThetaContext {
     /// The relative rounding of one term, in units of u: a part shared by every term and,
     /// for the innermost line's recurrence, coefficients (c1, c2) so that the term k steps
     /// into its line carries at most c1 k + c2 k^2 more.
-    pub(super) fn term_growth(&self, p: &PassSizes) -> Growth {
-        let g = self.g;
+    /// The part of the growth that depends on tau only (computed once per context):
+    /// (shared, per |w|^2, alpha).
+    pub(super) fn tau_growth(
+        g: usize,
+        taur: &DMatrix<C64>,
+        re: &DMatrix<f64>,
+        u: &DMatrix<i64>,
+        yred_inv_diag: &[f64],
+    ) -> (f64, f64, Vec<f64>) {
         let gf = g as f64;
-        let x = self.taur.map(|v| v.re.abs());
+        let x = taur.map(|v| v.re.abs());
         // Most errors grow with the term's reduced coordinates n_j, which the ellipsoid
         // bounds by its own |w|: |n_j + s_j| <= alpha_j |w| (alpha_j^2 = (Y'^-1)_jj / pi) and
         // |s_j| <= 1/2, so |n_j| <= alpha_j (1 + |w|^2) / 2 + 1/2 and n_j^2 <= 2 alpha_j^2
         // |w|^2 + 1/2. Each error is split into a constant and a multiple of |w|^2.
-        let alpha: Vec<f64> = self.yred_inv_diag.iter().map(|d| (d / PI).sqrt()).collect();
+        let alpha: Vec<f64> = yred_inv_diag.iter().map(|d| (d / PI).sqrt()).collect();
         let (mut shared, mut per_w2) = (0.0, 0.0);
         let sq = |coef: f64, j: usize, shared: &mut f64, per_w2: &mut f64| {
             // coef n_j^2
@@ -122,11 +132,20 @@ impl ThetaContext {
         }
         // Rounding of tau' = U^T tau U as seen by the phases: 2 g pi |n|^T |U|^T |X| |U| |n| <=
         // 2 g pi ||M||_F sum n_j^2.
-        let ua = self.u.map(|v| v.unsigned_abs() as f64);
-        let m_norm = (ua.transpose() * self.re.map(f64::abs) * &ua).norm();
+        let ua = u.map(|v| v.unsigned_abs() as f64);
+        let m_norm = (ua.transpose() * re.map(f64::abs) * &ua).norm();
         for j in 0..g {
             sq(2.0 * gf * PI * m_norm, j, &mut shared, &mut per_w2);
         }
+        (shared, per_w2, alpha)
+    }
+
+    pub(super) fn term_growth(&self, p: &PassSizes) -> Growth {
+        let g = self.g;
+        let gf = g as f64;
+        let (mut shared, mut per_w2) = (self.growth_shared, self.growth_w2);
+        let alpha = &self.alpha;
+        let x00 = self.taur[(0, 0)].re.abs();
         // Powers of the phases: |n_j| (e_j + 5), and the common phase.
         for j in 0..g {
             let c = p.phase_err[j] + 5.0;
@@ -152,8 +171,8 @@ impl ThetaContext {
         let h = p.half;
         let g0 = self.gammas[0];
         let dq = 12.0 * PI * self.taur[(0, 0)].norm() + 3.0;
-        let step = 6.0 * PI * x[(0, 0)] * (2.0 * h[0] + 1.0) + 2.0;
-        let cross1: f64 = (1..g).map(|k| 12.0 * PI * x[(0, k)] * h[k] + 2.0).sum();
+        let step = 6.0 * PI * x00 * (2.0 * h[0] + 1.0) + 2.0;
+        let cross1: f64 = (1..g).map(|k| 12.0 * PI * self.taur[(0, k)].re.abs() * h[k] + 2.0).sum();
         let ratio = 3.0 * (2.0 * g0 * p.radius + 3.0 * g0 * g0) + 2.0;
         let drho0 = step + cross1 + ratio + p.phase_err[0] + 5.0 + 3.0 * gf;
         let r2 = p.radius * p.radius;

@@ -100,8 +100,10 @@ pub struct SumInput<'a> {
     pub monos: &'a [Vec<u32>],
     /// (c1, c2, c3) of [`SumOutput::grow`].
     pub growth: [f64; 3],
-    /// Per direction: a bound on the absolute rounding of 2 pi i m.d at any point.
-    pub dir_err: &'a [f64],
+    /// A bound on the absolute rounding of any 2 pi i m.d_i at any point.
+    pub dir_err: f64,
+    /// Total order of each monomial.
+    pub orders: &'a [u32],
 }
 
 pub struct SumOutput {
@@ -149,8 +151,7 @@ pub fn run(inp: &SumInput) -> SumOutput {
         },
         line_acc: vec![vec![zero; nm]; nb],
         powers: maxe.iter().map(|&e| vec![zero; e as usize + 1]).collect(),
-        spow: maxe.iter().map(|&e| vec![0.0; e as usize + 1]).collect(),
-        spow_up: maxe.iter().map(|&e| vec![0.0; e as usize + 1]).collect(),
+        spow: vec![0.0; inp.orders.iter().copied().max().unwrap_or(0) as usize + 1],
         weights: vec![zero; nm],
         t: vec![zero; nb],
         rho: vec![zero; nb],
@@ -195,8 +196,8 @@ struct Walker<'a> {
     lin: Vec<Vec<C64>>,
     out: SumOutput,
     powers: Vec<Vec<C64>>,
-    spow: Vec<Vec<f64>>,
-    spow_up: Vec<Vec<f64>>,
+    /// Powers of sigma + d along the current point (see `line`).
+    spow: Vec<f64>,
     weights: Vec<C64>,
     t: Vec<C64>,
     rho: Vec<C64>,
@@ -255,7 +256,9 @@ impl Walker<'_> {
         self.out.points += len;
         self.out.lines += 1;
         self.out.max_line = self.out.max_line.max(len);
-        let mid = ((-centre).round() as i64).clamp(lo, hi);
+        // Short lines (most of them in skewed lattices) are walked from one end: splitting
+        // them would double the work per line for a few steps' worth of rounding.
+        let mid = if len > 6 { ((-centre).round() as i64).clamp(lo, hi) } else { lo };
         self.segment(mid, (hi - mid + 1) as usize, 1, centre, used);
         if mid > lo {
             self.segment(mid - 1, (mid - lo) as usize, -1, centre, used);
@@ -346,6 +349,7 @@ impl Walker<'_> {
         }
         for step in 0..len {
             let v = start + dir * step as i64;
+            let mut sigma = 0.0;
             for i in 0..inp.dirs.len() {
                 let s = self.lin[i][1] + inp.dirs[i][0] * v as f64;
                 let p = &mut self.powers[i];
@@ -354,16 +358,14 @@ impl Walker<'_> {
                     *slot = cur;
                     cur *= s;
                 }
-                // Powers of |s| and of |s| + (its rounding), for the weights' error.
-                let (sa, q) = (&mut self.spow[i], &mut self.spow_up[i]);
-                let m = s.re.abs() + s.im.abs();
-                let (mut a, mut b) = (1.0, 1.0);
-                for k in 0..sa.len() {
-                    sa[k] = a;
-                    q[k] = b;
-                    a *= m;
-                    b *= m + inp.dir_err[i];
-                }
+                sigma += s.re.abs() + s.im.abs();
+            }
+            // Powers of sigma + d (sigma = sum |s_i|, d the largest rounding of an s_i) for
+            // the weights' error: k d (sigma + d)^(k-1) for a weight of total order k.
+            let mut pw = 1.0;
+            for slot in self.spow.iter_mut() {
+                *slot = pw;
+                pw *= sigma + inp.dir_err;
             }
             let tabs = self.t[0].re.abs() + self.t[0].im.abs();
             let kf = step as f64;
@@ -384,16 +386,10 @@ impl Walker<'_> {
                 let wabs = wgt.re.abs() + wgt.im.abs();
                 self.out.abs[mi] += tabs * wabs;
                 self.out.grow[mi] += tgrow * wabs;
-                // prod (|s_i| + d_i)^e_i - prod |s_i|^e_i bounds the weight's error (it grows
-                // with each |s_i|, so the upper bound |re| + |im| of |s_i| may stand in).
-                let (mut up, mut lo) = (1.0, 1.0);
-                for (i, &e) in mo.iter().enumerate() {
-                    if e > 0 {
-                        up *= self.spow_up[i][e as usize];
-                        lo *= self.spow[i][e as usize];
-                    }
+                let k = inp.orders[mi];
+                if k > 0 {
+                    self.out.weight_err[mi] += tabs * (k as f64 * inp.dir_err) * self.spow[k as usize - 1];
                 }
-                self.out.weight_err[mi] += tabs * (up - lo);
             }
             for b in 0..self.t.len() {
                 let t = self.t[b];
