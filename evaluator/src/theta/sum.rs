@@ -219,6 +219,9 @@ impl Walker<'_> {
         }
         self.out.points += len;
         self.out.lines += 1;
+        if self.out.lines % 32 == 0 {
+            crate::limits::checkpoint();
+        }
         self.out.max_line = self.out.max_line.max(len);
         let q = inp.q;
         if inp.dirs.is_empty() {
