@@ -116,6 +116,8 @@ impl Evaluator<'_> {
     /// K605 for a statement cut short by its time budget.
     fn budget_diagnostic(span: Span, what: &str) -> Diagnostic {
         let budget = crate::limits::current().time_budget;
+        // `report` words a definition "`x` is"; this sentence has its own verb.
+        let what = what.strip_suffix(" is").unwrap_or(what);
         Diagnostic::error(
             Code::BudgetExceeded,
             span,
@@ -128,7 +130,7 @@ impl Evaluator<'_> {
     fn out_of_time(&mut self, i: usize) {
         let stmt = &self.checked.program.stmts[i];
         let (span, what) = match &stmt.kind {
-            StmtKind::Let { name, .. } | StmtKind::Wave { name, .. } => (name.span, format!("`{}` is", name.name)),
+            StmtKind::Let { name, .. } | StmtKind::Wave { name, .. } => (name.span, format!("`{}`", name.name)),
             StmtKind::Expect { .. } => (stmt.span, "claim".to_string()),
             StmtKind::Output { kind, .. } => (stmt.span, format!("`{}`", kind.keyword())),
             _ => (stmt.span, "this statement".to_string()),
