@@ -29,8 +29,6 @@ fn prem(a: &Z, b: &Z) -> Z {
     let lb = b[db].clone();
     let mut e = deg(a) + 1 - db;
     while r.len() > db && !r.is_empty() {
-        // Coefficients grow with every step: a step of a big-coefficient curve can take long.
-        crate::limits::checkpoint();
         let dr = deg(&r);
         let c = r[dr].clone();
         for v in r.iter_mut() {
@@ -78,6 +76,8 @@ pub fn resultant(a: &Z, b: &Z) -> BigInt {
     }
     let (mut g, mut h) = (BigInt::one(), BigInt::one());
     while deg(&b) > 0 {
+        // Coefficients grow with every step: a step of a big-coefficient curve can take long.
+        crate::limits::checkpoint();
         let delta = deg(&a) - deg(&b);
         if deg(&a) % 2 == 1 && deg(&b) % 2 == 1 {
             s = -s;
