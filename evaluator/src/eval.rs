@@ -1,6 +1,7 @@
 //! Evaluates a checked program in its dependency order. A pure function of the checked
 //! program and the mode: no global state, so results can be cached by content.
 
+use crate::limits::{CancelToken, Stop};
 use crate::linalg::{riemann_check, to_complex_matrix};
 use crate::num::Num;
 use crate::value::{CurveValue, Value, Valued};
@@ -42,6 +43,9 @@ pub struct Evaluation {
     pub values: Vec<NamedValue>,
     pub expectations: Vec<Expectation>,
     pub outputs: Vec<String>,
+    /// The evaluation was cancelled through its [`CancelToken`]: the statement running then
+    /// and every later one have no value (and no diagnostic); the rest is as computed.
+    pub cancelled: bool,
 }
 
 impl Evaluation {
@@ -65,11 +69,28 @@ pub(crate) fn fail(code: Code, span: Span, msg: impl Into<String>) -> Fail {
 }
 
 pub fn evaluate(checked: &Checked, src: &str, mode: &Mode) -> Evaluation {
+    evaluate_cancellable(checked, src, mode, &CancelToken::new())
+}
+
+/// [`evaluate`], stopping as soon as `cancel` is cancelled (from any thread).
+pub fn evaluate_cancellable(checked: &Checked, src: &str, mode: &Mode, cancel: &CancelToken) -> Evaluation {
     let mut ev = Evaluator { checked, src, env: HashMap::new(), out: Evaluation::default() };
     crate::limits::set(crate::limits::from_settings(&checked.settings));
     for &i in &checked.order {
-        crate::limits::start_statement();
-        ev.statement(i, mode);
+        if cancel.is_cancelled() {
+            ev.out.cancelled = true;
+            break;
+        }
+        let _clock = crate::limits::start_statement(cancel);
+        // Deep code stops at a checkpoint by unwinding to here (see `limits::checkpoint`).
+        match crate::limits::catch(|| ev.statement(i, mode)) {
+            Ok(()) => {}
+            Err(Stop::OutOfTime) => ev.out_of_time(i),
+            Err(Stop::Cancelled) => {
+                ev.out.cancelled = true;
+                break;
+            }
+        }
     }
     kelp_lang::diag::sort(&mut ev.out.diagnostics);
     ev.out
@@ -92,20 +113,45 @@ impl Evaluator<'_> {
         &self.src[s.range()]
     }
 
+    /// K605 for a statement cut short by its time budget.
+    fn budget_diagnostic(span: Span, what: &str) -> Diagnostic {
+        let budget = crate::limits::current().time_budget;
+        // `report` words a definition "`x` is"; this sentence has its own verb.
+        let what = what.strip_suffix(" is").unwrap_or(what);
+        Diagnostic::error(
+            Code::BudgetExceeded,
+            span,
+            format!("{what} ran out of its time budget of {budget} s, so it has no value"),
+        )
+        .with_note("raise it with `set time_budget = SECONDS` or `--limit time_budget=SECONDS`")
+    }
+
+    /// Statement `i` stopped at a checkpoint when its time ran out.
+    fn out_of_time(&mut self, i: usize) {
+        let stmt = &self.checked.program.stmts[i];
+        let (span, what) = match &stmt.kind {
+            StmtKind::Let { name, .. } | StmtKind::Wave { name, .. } => (name.span, format!("`{}`", name.name)),
+            StmtKind::Expect { .. } => (stmt.span, "claim".to_string()),
+            StmtKind::Output { kind, .. } => (stmt.span, format!("`{}`", kind.keyword())),
+            _ => (stmt.span, "this statement".to_string()),
+        };
+        let d = Self::budget_diagnostic(span, &what);
+        if matches!(stmt.kind, StmtKind::Expect { .. }) {
+            let detail = d.message.clone();
+            self.out.expectations.push(Expectation { span, passed: None, detail });
+        }
+        self.out.diagnostics.push(d);
+    }
+
     fn report(&mut self, f: Fail, span: Span, what: &str) {
         match f {
-            // Whatever a computation cut short by the clock said, the reason is the budget.
-            Fail::At(d) if crate::limits::expired() && d.code != Code::BudgetExceeded => {
-                let budget = crate::limits::current().time_budget;
-                self.out.diagnostics.push(
-                    Diagnostic::error(
-                        Code::BudgetExceeded,
-                        d.span,
-                        format!("{what} ran out of its time budget of {budget} s, so it has no value"),
-                    )
-                    .with_note("raise it with `set time_budget = SECONDS` or `--limit time_budget=SECONDS`"),
-                )
+            // Whatever a computation cut short by the clock said, the reason is the budget
+            // (also for code that stopped with `limits::check` and a message without it).
+            Fail::At(d) if crate::limits::stop() == Some(Stop::OutOfTime) => {
+                self.out.diagnostics.push(Self::budget_diagnostic(d.span, what))
             }
+            // Cancelled work is thrown away by whoever cancelled it.
+            Fail::At(_) if crate::limits::stop() == Some(Stop::Cancelled) => self.out.cancelled = true,
             Fail::At(d) => self.out.diagnostics.push(d),
             Fail::Dep(name) => self.out.diagnostics.push(Diagnostic::warning(
                 Code::DependsOnFailed,

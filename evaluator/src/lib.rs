@@ -20,5 +20,6 @@ pub mod value;
 mod wave_fn;
 pub mod waves;
 
-pub use eval::{evaluate, Evaluation, Expectation, Mode, NamedValue};
+pub use eval::{evaluate, evaluate_cancellable, Evaluation, Expectation, Mode, NamedValue};
+pub use limits::CancelToken;
 pub use value::{Value, Valued};

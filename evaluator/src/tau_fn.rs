@@ -83,9 +83,7 @@ impl Evaluator<'_> {
         let accuracy = self.checked.settings.accuracy();
         genus_limit(superelliptic_genus(shape.m, shape.f.degree().unwrap_or(0) as u32) as i64, span, &c.name)?;
         let p = c
-            .periods
-            .get_or_init(|| crate::periods::periods_memo(shape.m, &shape.f, accuracy))
-            .clone()
+            .periods_or(|| crate::periods::periods_memo(shape.m, &shape.f, accuracy))
             .map_err(|e| period_fail(&e, span, &c.name))?;
         // Two independent genus computations must agree: the differentials counted here and
         // the exact curve algebra's delta invariants.
@@ -130,9 +128,7 @@ impl Evaluator<'_> {
             other => fail(Code::EvalFailed, span, format!("`{}` has no Riemann matrix: {}", c.name, other.message())),
         })?;
         let p = c
-            .periods
-            .get_or_init(|| crate::periods::general_memo(&c.equation.poly, c.equation.projective, &facts, genus))
-            .clone()
+            .periods_or(|| crate::periods::general_memo(&c.equation.poly, c.equation.projective, &facts, genus))
             .map_err(|e| period_fail(&e, span, &c.name))?;
         riemann_matrix((*p).clone(), reduce).map_err(|e| period_fail(&e, span, &c.name))
     }

@@ -30,6 +30,25 @@ impl CurveValue {
     }
 }
 
+impl CurveValue {
+    /// The periods, computed by `compute` on first use and kept; a failure while the statement
+    /// is out of time (or cancelled) is not kept, so a later statement computes them afresh.
+    /// (A computation stopped at a checkpoint unwinds through here and leaves the cell empty.)
+    pub fn periods_or(
+        &self,
+        compute: impl FnOnce() -> Result<std::sync::Arc<crate::periods::Periods>, crate::periods::PeriodError>,
+    ) -> Result<std::sync::Arc<crate::periods::Periods>, crate::periods::PeriodError> {
+        if let Some(p) = self.periods.get() {
+            return p.clone();
+        }
+        let p = compute();
+        if p.is_ok() || !crate::limits::expired() {
+            let _ = self.periods.set(p.clone());
+        }
+        p
+    }
+}
+
 /// A singular point with its local invariants.
 #[derive(Clone, Debug)]
 pub struct SingularInfo {

@@ -74,6 +74,7 @@ impl P2 {
     pub fn shift(&self, a: &BigRational, b: &BigRational) -> P2 {
         let mut p = P2::default();
         for (&(i, j), c) in &self.terms {
+            crate::limits::checkpoint();
             for k in 0..=i {
                 let ck = BigRational::from_integer(binomial(i, k)) * num_traits::pow(a.clone(), (i - k) as usize);
                 if ck.is_zero() {
@@ -153,6 +154,7 @@ pub fn resultant_v(f: &P2, g: &P2) -> UPoly {
     let bound = f.total_degree().unwrap_or(0) * g.total_degree().unwrap_or(0);
     let ys: Vec<BigInt> = (0..=bound as i64)
         .map(|x| {
+            crate::limits::checkpoint();
             let (fu, mut gu) = (f.at_u_int(x), g.at_u_int(x));
             super::zpoly::trim(&mut gu);
             if gu.is_empty() {
@@ -198,6 +200,7 @@ pub fn intersection_at_origin(p: &P2, q: &P2) -> Option<u64> {
     let (mut f, mut g) = (p.clone(), q.clone());
     let mut total = 0u64;
     for _ in 0..10_000 {
+        crate::limits::checkpoint();
         let at0 = |h: &P2| h.terms.get(&(0, 0)).is_some_and(|c| !c.is_zero());
         if at0(&f) || at0(&g) {
             return Some(total);

@@ -161,6 +161,7 @@ pub fn analyse(poly: &Poly, projective: bool) -> CurveFacts {
     let (fu, fv) = (fa.deriv(0), fa.deriv(1));
     let mut h = UPoly::zero();
     for t in 0..=d as i64 {
+        crate::limits::checkpoint();
         let r = resultant_v(&fa, &fu.scale_add(&fv, &q(t)));
         // Most curves are smooth: a certificate mod p settles coprimality at once.
         if !h.is_zero() && h.coprime_mod_p(&r) == Some(true) {
@@ -179,9 +180,11 @@ pub fn analyse(poly: &Poly, projective: bool) -> CurveFacts {
     let h = h.squarefree();
     let xs = h.rational_roots();
     for x0 in &xs {
+        crate::limits::checkpoint();
         let gy = fa.at_u(x0).gcd(&fu.at_u(x0)).gcd(&fv.at_u(x0));
         let ys = gy.rational_roots();
         for y0 in &ys {
+            crate::limits::checkpoint();
             let at = fa.shift(x0, y0);
             let local = local::analyse(&at);
             let line_component = has_line_component(&at);
@@ -189,6 +192,7 @@ pub fn analyse(poly: &Poly, projective: bool) -> CurveFacts {
         }
         let mut rest_y = gy.squarefree();
         for y0 in &ys {
+            crate::limits::checkpoint();
             rest_y = rest_y.divrem(&UPoly::new(vec![-y0.clone(), BigRational::one()])).0;
         }
         if rest_y.degree().unwrap_or(0) > 0 {
@@ -196,6 +200,7 @@ pub fn analyse(poly: &Poly, projective: bool) -> CurveFacts {
             let gen = UPoly::new(vec![BigRational::zero(), BigRational::one()]);
             let x0c = UPoly::new(vec![x0.clone()]);
             for (h4, local) in local_ext::analyse(&fa, &rest_y, &x0c, &gen) {
+                crate::limits::checkpoint();
                 let approx =
                     roots::complex_roots(&h4).into_iter().map(|z| (z, roots::inclusion_radius(&h4, z))).collect();
                 facts.irrational.push(IrrationalPoints {
@@ -213,6 +218,7 @@ pub fn analyse(poly: &Poly, projective: bool) -> CurveFacts {
     }
     let mut rest = h.clone();
     for x0 in &xs {
+        crate::limits::checkpoint();
         rest = rest.divrem(&UPoly::new(vec![-x0.clone(), BigRational::one()])).0;
     }
     if rest.degree().unwrap_or(0) > 0 {
@@ -225,8 +231,11 @@ pub fn analyse(poly: &Poly, projective: bool) -> CurveFacts {
             _ => format!("x - {c}*y"),
         };
         for (h1, g1) in tower::gcd(&rest, &rf, &ru) {
+            crate::limits::checkpoint();
             for (h2, g2) in tower::gcd(&h1, &g1, &rv) {
+                crate::limits::checkpoint();
                 for (h3, sq) in tower::squarefree(&h2, &g2) {
+                    crate::limits::checkpoint();
                     let k = sq.len().saturating_sub(1);
                     if k == 0 {
                         continue;
@@ -250,6 +259,7 @@ pub fn analyse(poly: &Poly, projective: bool) -> CurveFacts {
                     let beta = sq[0].neg().mul(&tower::xgcd_mod(&sq[1], &h3).1).rem(&h3);
                     let gen = UPoly::new(vec![BigRational::zero(), BigRational::one()]);
                     for (h4, local) in local_ext::analyse(&fa, &h3, &gen, &beta) {
+                        crate::limits::checkpoint();
                         let beta4 = beta.rem(&h4);
                         facts.irrational.push(IrrationalPoints {
                             description: format!(
@@ -277,6 +287,7 @@ pub fn analyse(poly: &Poly, projective: bool) -> CurveFacts {
         let chart = P2::chart(&g, 0); // x = 1: variables (y, z)
         let ys = gi.rational_roots();
         for y0 in &ys {
+            crate::limits::checkpoint();
             let at = chart.shift(y0, &q(0));
             let local = local::analyse(&at);
             let line_component = has_line_component(&at);
@@ -287,10 +298,12 @@ pub fn analyse(poly: &Poly, projective: bool) -> CurveFacts {
         if extra > 0 {
             let mut rest = sf.clone();
             for y0 in &ys {
+                crate::limits::checkpoint();
                 rest = rest.divrem(&UPoly::new(vec![-y0.clone(), BigRational::one()])).0;
             }
             let gen = UPoly::new(vec![BigRational::zero(), BigRational::one()]);
             for (h4, local) in local_ext::analyse(&chart, &rest, &gen, &UPoly::zero()) {
+                crate::limits::checkpoint();
                 let approx =
                     roots::complex_roots(&h4).into_iter().map(|z| (z, roots::inclusion_radius(&h4, z))).collect();
                 facts.irrational.push(IrrationalPoints {

@@ -78,6 +78,7 @@ fn directions(p: &P2) -> Result<Vec<u32>, Unsupported> {
     let mut rest = t.clone();
     let mut level = 1;
     while rest.degree().unwrap_or(0) > 0 {
+        crate::limits::checkpoint();
         let g = rest.gcd(&rest.derivative());
         // Roots of rest / g are the distinct roots of rest; those not in g have
         // multiplicity `level` in T.
@@ -123,6 +124,7 @@ fn walk(p: &P2, depth: usize, tree: &mut Vec<u32>) -> Result<(u64, u32), Unsuppo
             ));
         }
         for t0 in roots {
+            crate::limits::checkpoint();
             let (d, r) = walk(&p.blow_up(m, &t0), depth + 1, tree)?;
             delta += d;
             branches += r;

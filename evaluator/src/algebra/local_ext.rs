@@ -54,6 +54,7 @@ impl Ring<'_> {
     fn powers(&self, a: &UPoly, n: u32) -> Vec<UPoly> {
         let mut out = vec![UPoly::one()];
         for _ in 0..n {
+            crate::limits::checkpoint();
             let next = self.mul(out.last().unwrap(), a);
             out.push(next);
         }
@@ -75,6 +76,7 @@ pub fn analyse(f: &P2, h: &UPoly, a: &UPoly, b: &UPoly) -> Vec<(UPoly, Result<Lo
     let mut out = Vec::new();
     let mut work = vec![h.clone()];
     while let Some(h) = work.pop() {
+        crate::limits::checkpoint();
         if h.degree().unwrap_or(0) == 0 {
             continue;
         }
@@ -96,6 +98,7 @@ fn piece(f: &P2, h: &UPoly, a: &UPoly, b: &UPoly) -> Result<Local, Fail> {
     let (pa, pb) = (r.powers(a, deg), r.powers(b, deg));
     let mut g = RP2::default();
     for (&(i, j), c) in &f.terms {
+        crate::limits::checkpoint();
         for k in 0..=i {
             let ck = r.mul(&pa[(i - k) as usize], &UPoly::new(vec![binomial(i, k) * c]));
             for l in 0..=j {
@@ -139,6 +142,7 @@ fn walk(r: &Ring, g: &RP2, depth: usize, tree: &mut Vec<u32>) -> Result<(u64, u3
     let mut m = None;
     let mut live = RP2::default();
     for (&(i, j), c) in &g.terms {
+        crate::limits::checkpoint();
         if r.nonzero(c)? {
             live.terms.insert((i, j), c.clone());
             m = Some(m.map_or(i + j, |v: u32| v.min(i + j)));
@@ -153,6 +157,7 @@ fn walk(r: &Ring, g: &RP2, depth: usize, tree: &mut Vec<u32>) -> Result<(u64, u3
     // Tangent cone T(1, t) over R, and the multiplicity `drop` of the direction u = 0.
     let mut t: Vec<UPoly> = vec![UPoly::zero(); m as usize + 1];
     for (&(i, j), c) in &live.terms {
+        crate::limits::checkpoint();
         if i + j == m {
             t[j as usize] = c.clone();
         }
@@ -205,6 +210,7 @@ fn walk(r: &Ring, g: &RP2, depth: usize, tree: &mut Vec<u32>) -> Result<(u64, u3
         _ => {
             let mut up = RP2::default();
             for (&(i, j), c) in &live.terms {
+                crate::limits::checkpoint();
                 r.add_term(&mut up, (i, i + j - m), c.clone());
             }
             let (d, br, _, _) = walk(r, &up, depth + 1, tree)?;
@@ -222,6 +228,7 @@ fn blow_up(r: &Ring, g: &RP2, m: u32, t0: &UPoly) -> RP2 {
     let pt = r.powers(t0, deg);
     let mut out = RP2::default();
     for (&(i, j), c) in &g.terms {
+        crate::limits::checkpoint();
         for l in 0..=j {
             let cl = r.mul(c, &pt[(j - l) as usize].scale(&binomial(j, l)));
             r.add_term(&mut out, (i + j - m, l), cl);

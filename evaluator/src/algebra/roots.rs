@@ -35,6 +35,7 @@ pub fn aberth(p: &[C64]) -> Vec<C64> {
         (pv, dv)
     };
     for _ in 0..500 {
+        crate::limits::checkpoint();
         let mut moved: f64 = 0.0;
         for i in 0..n {
             let (pv, dv) = eval(z[i]);
@@ -108,6 +109,7 @@ pub fn refined_roots(p: &UPoly) -> Vec<(C64, f64)> {
     };
     let mut z = complex_roots(p);
     for _ in 0..40 {
+        crate::limits::checkpoint();
         let mut moved: f64 = 0.0;
         for i in 0..z.len() {
             let (pv, dv, _) = eval_dd(z[i]);

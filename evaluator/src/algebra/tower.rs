@@ -15,6 +15,7 @@ pub fn xgcd_mod(a: &UPoly, h: &UPoly) -> (UPoly, UPoly) {
     let (mut r0, mut r1) = (h.clone(), a.rem(h));
     let (mut s0, mut s1) = (UPoly::zero(), UPoly::one());
     while !r1.is_zero() {
+        crate::limits::checkpoint();
         let (qt, r) = r0.divrem(&r1);
         let s = s0.sub(&qt.mul(&s1));
         r0 = r1;
@@ -57,6 +58,7 @@ pub fn gcd(h: &UPoly, a: &RPoly, b: &RPoly) -> Vec<(UPoly, RPoly)> {
     let mut out = Vec::new();
     let mut work = vec![(h.clone(), a.clone(), b.clone())];
     while let Some((h, a, b)) = work.pop() {
+        crate::limits::checkpoint();
         if h.degree().unwrap_or(0) == 0 {
             continue;
         }
@@ -85,6 +87,7 @@ pub fn gcd(h: &UPoly, a: &RPoly, b: &RPoly) -> Vec<(UPoly, RPoly)> {
                 let mut r = a.clone();
                 let db = b.len() - 1;
                 while r.len() > db {
+                    crate::limits::checkpoint();
                     let c = r.last().unwrap().mul(&inv).rem(&h);
                     let shift = r.len() - 1 - db;
                     for (i, bc) in b.iter().enumerate() {
@@ -133,6 +136,7 @@ pub fn divide(h: &UPoly, p: &RPoly, d: &RPoly) -> RPoly {
     let lead_inv = xgcd_mod(d.last().unwrap(), h).1;
     let mut q = vec![UPoly::zero(); rem.len().saturating_sub(dd)];
     while rem.len() > dd {
+        crate::limits::checkpoint();
         let c = rem.last().unwrap().mul(&lead_inv).rem(h);
         let shift = rem.len() - 1 - dd;
         for (i, dc) in d.iter().enumerate() {

@@ -74,6 +74,7 @@ impl UPoly {
             if a.is_zero() {
                 continue;
             }
+            crate::limits::checkpoint();
             for (j, b) in o.0.iter().enumerate() {
                 r[i + j] += a * b;
             }
@@ -90,6 +91,7 @@ impl UPoly {
         let mut quo = vec![BigRational::zero(); r.len() - d];
         let inv = BigRational::one() / o.lead();
         for k in (0..quo.len()).rev() {
+            crate::limits::checkpoint();
             let c = &r[k + d] * &inv;
             if !c.is_zero() {
                 for (j, b) in o.0.iter().enumerate() {

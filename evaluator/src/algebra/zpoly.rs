@@ -76,6 +76,8 @@ pub fn resultant(a: &Z, b: &Z) -> BigInt {
     }
     let (mut g, mut h) = (BigInt::one(), BigInt::one());
     while deg(&b) > 0 {
+        // Coefficients grow with every step: a step of a big-coefficient curve can take long.
+        crate::limits::checkpoint();
         let delta = deg(&a) - deg(&b);
         if deg(&a) % 2 == 1 && deg(&b) % 2 == 1 {
             s = -s;
@@ -104,6 +106,7 @@ pub fn interpolate_integers(ys: &[BigInt]) -> Vec<num_rational::BigRational> {
     let mut diffs = Vec::with_capacity(n);
     let mut cur = ys.to_vec();
     for _ in 0..n {
+        crate::limits::checkpoint();
         diffs.push(cur[0].clone());
         cur = cur.windows(2).map(|w| &w[1] - &w[0]).collect();
     }
@@ -114,6 +117,7 @@ pub fn interpolate_integers(ys: &[BigInt]) -> Vec<num_rational::BigRational> {
     let mut acc = vec![BigInt::zero(); n.max(1)];
     let mut falling = vec![BigInt::one()]; // falling(u, 0) = 1
     for (k, d) in diffs.iter().enumerate() {
+        crate::limits::checkpoint();
         if !d.is_zero() {
             let w = d * (&big / fact(k));
             for (i, c) in falling.iter().enumerate() {

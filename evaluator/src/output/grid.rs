@@ -51,20 +51,22 @@ impl Grid {
     pub fn evaluate(wave: &Wave, x: Vec<f64>, y: Vec<f64>, t: Vec<f64>) -> Result<Grid, String> {
         let (nx, ny) = (x.len(), y.len());
         POINTS_TOTAL.fetch_add(t.len() * ny * nx, Ordering::Relaxed);
-        // Workers do not see the evaluator's clock: they get its deadline.
-        let deadline = crate::limits::deadline();
+        // Workers do not see the evaluator's thread-locals: each enters the statement's scope
+        // (limits and token), so checkpoints deep in `u` stop them; rayon hands the unwind on.
+        let scope = crate::limits::scope();
         let u: Result<Vec<C64>, String> = (0..t.len() * ny * nx)
             .into_par_iter()
-            .map(|k| {
-                let (it, rest) = (k / (ny * nx), k % (ny * nx));
-                let (iy, ix) = (rest / nx, rest % nx);
-                if deadline.is_some_and(|d| std::time::Instant::now() >= d) {
-                    return Err(crate::limits::OUT_OF_TIME.to_string());
-                }
-                let v = wave.u(x[ix], y[iy], t[it]);
-                POINTS_DONE.fetch_add(1, Ordering::Relaxed);
-                v
-            })
+            .map_init(
+                || scope.enter(),
+                |_, k| {
+                    let (it, rest) = (k / (ny * nx), k % (ny * nx));
+                    let (iy, ix) = (rest / nx, rest % nx);
+                    crate::limits::checkpoint();
+                    let v = wave.u(x[ix], y[iy], t[it]);
+                    POINTS_DONE.fetch_add(1, Ordering::Relaxed);
+                    v
+                },
+            )
             .collect();
         Ok(Grid { u: u?, x, y, t, physical: wave.water().is_some() })
     }

@@ -195,6 +195,7 @@ pub fn periods(m: u32, f: &UPoly, tol: f64) -> Result<Periods, PeriodError> {
     };
     let mut k = vec![vec![0i64; nc]; nc];
     for c1 in 0..nc {
+        crate::limits::checkpoint();
         for c2 in 0..nc {
             if c1 == c2 {
                 continue;
@@ -295,6 +296,7 @@ fn pieces(us: &[C64]) -> Vec<Piece> {
     let mut out = vec![];
     let mut stack = vec![(-1.0, 1.0, 0)];
     while let Some((lo, hi, depth)) = stack.pop() {
+        crate::limits::checkpoint();
         let r = rho(us, lo, hi);
         if r >= SPLIT_RHO || depth >= 60 || hi - lo < 1e-13 {
             out.push(Piece { lo, hi, rho: r });
@@ -335,6 +337,7 @@ fn edge_integrals(
     let mut largest = 0;
     let max_j = diffs.iter().map(|d| d.j).max().unwrap_or(0);
     for piece in pieces(&us) {
+        crate::limits::checkpoint();
         let (lo, hi) = (piece.lo, piece.hi);
         let (cp, hp) = ((lo + hi) / 2.0, (hi - lo) / 2.0);
         let (left, right) = (lo == -1.0, hi == 1.0);
@@ -406,6 +409,7 @@ fn edge_integrals(
             let rule = quad::rule(weight, size);
             let mut magnitude = vec![0.0; which.len()];
             for (sn, w) in rule.nodes.iter().zip(&rule.weights) {
+                crate::limits::checkpoint();
                 let t = centre + hp * sn;
                 let x = mid + half * t;
                 let base = half * hp * *w * ends(t) * (-jf * (log_ce + piece_log(t) / mf)).exp();

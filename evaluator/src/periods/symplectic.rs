@@ -57,6 +57,7 @@ pub fn symplectic_basis(k: &[Vec<i64>]) -> Result<SymplecticBasis, String> {
         }
     };
     loop {
+        crate::limits::checkpoint();
         // The pair with the smallest nonzero pairing.
         let mut best: Option<(usize, usize, i128)> = None;
         for i in 0..rem.len() {
@@ -69,6 +70,7 @@ pub fn symplectic_basis(k: &[Vec<i64>]) -> Result<SymplecticBasis, String> {
         }
         let Some((mut ix, mut iy, _)) = best else { break };
         loop {
+            crate::limits::checkpoint();
             let d = gram[ix][iy];
             let mut next: Option<(usize, usize, i128)> = None;
             for z in 0..rem.len() {

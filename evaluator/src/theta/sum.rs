@@ -255,6 +255,9 @@ impl Walker<'_> {
         let len = (hi - lo + 1) as usize;
         self.out.points += len;
         self.out.lines += 1;
+        if self.out.lines % 32 == 0 {
+            crate::limits::checkpoint();
+        }
         self.out.max_line = self.out.max_line.max(len);
         // Short lines (most of them in skewed lattices) are walked from one end: splitting
         // them would double the work per line for a few steps' worth of rounding.

@@ -129,6 +129,7 @@ impl Soliton {
         let mut minors = vec![];
         let mut terms = vec![];
         for cols in subsets(n, k) {
+            crate::limits::checkpoint();
             // Column cols[j] of the sorted kappa is column order[cols[j]] of A as written.
             let value = if exact {
                 let mut m: Vec<Vec<BigRational>> = a

@@ -120,6 +120,7 @@ fn singular_points(
         let m_us = m as usize;
         let mut candidates: Vec<(f64, C64, C64)> = vec![];
         for &x0 in critical {
+            crate::limits::checkpoint();
             let roots = plane::roots(&g.fibre(x0));
             for (k, &y) in roots.iter().enumerate() {
                 let mut near: Vec<(f64, usize)> =
@@ -349,6 +350,7 @@ impl Walk<'_> {
         depth: usize,
         parent: f64,
     ) -> Result<(Vec<Vec<C64>>, f64, Vec<C64>), PeriodError> {
+        crate::limits::checkpoint();
         crate::limits::check().map_err(|m| PeriodError::Accuracy(m.into()))?;
         let (d, g) = (ys.len(), self.basis.ncols());
         let (mut x, _) = piece.at(-1.0);
@@ -358,6 +360,7 @@ impl Walk<'_> {
         let mut sums = [vec![vec![C64::new(0.0, 0.0); g]; d], vec![vec![C64::new(0.0, 0.0); g]; d]];
         let mut mono = vec![C64::new(0.0, 0.0); self.monomials.len()];
         for &(t, w, big) in self.rule_nodes {
+            crate::limits::checkpoint();
             let (xn, dxdt) = piece.at(t);
             let (c, k) = track::continue_to(self.g, x, &cur, betas.take(), xn, &mut self.steps)
                 .map_err(PeriodError::Accuracy)?;

@@ -215,6 +215,7 @@ pub fn continue_to(
     let total = x1 - x0;
     let mut done = 0.0f64;
     while done < 1.0 {
+        crate::limits::checkpoint();
         let take = frac.min(1.0 - done);
         let next = if done + take >= 1.0 { x1 } else { x0 + total * (done + take) };
         match attempt(g, x, &cur, &betas, next) {
