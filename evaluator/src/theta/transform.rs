@@ -84,6 +84,7 @@ pub fn eval(
     let mut ez = vec![z_err; g];
     let (mut log, mut el) = (C64::new(0.0, 0.0), 0.0f64);
     for _ in 0..200 {
+        crate::limits::checkpoint();
         // (1) LLL on Im tau.
         let y = t.map(|v| v.im);
         let u = lattice::lll(&y);
