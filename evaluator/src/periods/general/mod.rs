@@ -173,7 +173,7 @@ fn singular_points(
 
 /// The point with projective coordinates `p` (old coordinates) in the chart Z = 1 of the
 /// new ones, where (old) = change (new): Cramer's rule, exact until the final rounding.
-fn in_chart(change: &[[i64; 3]; 3], p: &[BigRational; 3]) -> Option<(C64, C64)> {
+fn in_chart(change: &[[i64; 3]; 3], p: &[BigRational; 3]) -> Option<(BigRational, BigRational)> {
     let m = |r: usize, c: usize| q(change[r][c]);
     let det3 = |col: usize, with: Option<&[BigRational; 3]>| -> BigRational {
         let e = |r: usize, c: usize| match with {
@@ -191,7 +191,7 @@ fn in_chart(change: &[[i64; 3]; 3], p: &[BigRational; 3]) -> Option<(C64, C64)> 
     if n[2].is_zero() {
         return None;
     }
-    Some((C64::new(to_f64(&(&n[0] / &n[2])), 0.0), C64::new(to_f64(&(&n[1] / &n[2])), 0.0)))
+    Some((&n[0] / &n[2], &n[1] / &n[2]))
 }
 
 /// Newton's method in (x, y) on d^o G / dx^o and d^o G / dy^o.
@@ -472,9 +472,11 @@ pub fn periods(poly: &Poly, projective: bool, facts: &CurveFacts, genus: i64) ->
     // exact, and only the irrational ones are located numerically (a point of high
     // multiplicity found from a cluster of fibre roots is off by about eps^(1/m)).
     let mut singular: Vec<(C64, C64, u32)> = vec![];
+    let mut exact = vec![];
     for p in &facts.rational {
         if let (Ok(l), Some((x, y))) = (&p.local, in_chart(&change, &p.coords)) {
-            singular.push((x, y, l.multiplicity));
+            singular.push((C64::new(to_f64(&x), 0.0), C64::new(to_f64(&y), 0.0), l.multiplicity));
+            exact.push(Some(adjoint::ExactPoint::new(&chart, &x, &y)));
             if let Some(k) = wanted.get_mut(&l.multiplicity) {
                 *k -= 1;
             }
@@ -483,6 +485,7 @@ pub fn periods(poly: &Poly, projective: bool, facts: &CurveFacts, genus: i64) ->
     wanted.retain(|_, k| *k > 0);
     let known = singular.clone();
     singular.extend(singular_points(&plane, &critical, &wanted, &known));
+    exact.resize(singular.len(), None);
     if singular.len() != facts.singular_count() {
         return Err(PeriodError::Accuracy(format!(
             "{} singular points found numerically, the exact algebra has {}",
@@ -491,7 +494,7 @@ pub fn periods(poly: &Poly, projective: bool, facts: &CurveFacts, genus: i64) ->
         )));
     }
     let mut numeric_delta = 0u64;
-    let diffs = adjoint::holomorphic(&plane, &singular, genus as usize, &mut numeric_delta);
+    let diffs = adjoint::holomorphic(&plane, &singular, &exact, genus as usize, &mut numeric_delta);
     let arithmetic = ((d - 1) * (d - 2) / 2) as i64;
     if arithmetic - numeric_delta as i64 != genus {
         return Err(PeriodError::Accuracy(format!(

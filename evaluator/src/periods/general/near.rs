@@ -162,12 +162,43 @@ pub fn conditions(curve: &LocalPoly, p: &LocalPoly, rows: &mut Vec<Vec<C64>>, de
         if k < 2 {
             continue; // a simple tangent: the strict transform is smooth there
         }
-        let t = sum / k as f64;
+        let t = refine_multiple(&h, sum / k as f64, k);
         let c2 = curve.blow_up(t, m);
         let p2 = p.blow_up(t, m - 1);
         delta += conditions(&c2, &p2, rows, depth + 1)?;
     }
     Ok(delta)
+}
+
+/// A k-fold root of h near t: the simple root of h^(k-1) by Newton's method. The roots of a
+/// k-fold cluster converge only linearly and stop about eps^(1/k) off, not symmetrically,
+/// so their centroid can be off by far more than eps (observed: 1e-10 at a tacnode, which
+/// moved the adjoint conditions and tau by as much).
+fn refine_multiple(h: &[C64], t0: C64, k: usize) -> C64 {
+    let mut c = h.to_vec();
+    for _ in 0..k - 1 {
+        c = (1..c.len()).map(|j| c[j] * j as f64).collect();
+    }
+    let eval = |c: &[C64], t: C64| c.iter().rev().fold(ZERO, |acc, v| acc * t + v);
+    let dc: Vec<C64> = (1..c.len()).map(|j| c[j] * j as f64).collect();
+    let mut t = t0;
+    for _ in 0..30 {
+        let d = eval(&dc, t);
+        if d.norm() == 0.0 {
+            break;
+        }
+        let step = eval(&c, t) / d;
+        t -= step;
+        if step.norm() <= 1e-16 * (1.0 + t.norm()) {
+            break;
+        }
+    }
+    // A step that left the cluster (a wrong join) keeps the centroid.
+    if (t - t0).norm() < 1e-3 * (1.0 + t0.norm()) {
+        t
+    } else {
+        t0
+    }
 }
 
 #[cfg(test)]
