@@ -85,6 +85,7 @@ pub fn holomorphic(
     plane: &Plane,
     singular: &[(C64, C64, u32)],
     exact: &[Option<ExactPoint>],
+    shear: Option<C64>,
     genus: usize,
     delta: &mut u64,
 ) -> Result<Differentials, String> {
@@ -141,7 +142,7 @@ pub fn holomorphic(
             }
         }
         let mut point_rows = vec![];
-        *delta += conditions(&curve, &p, &mut point_rows, 0)?;
+        *delta += conditions(&curve, &p, &mut point_rows, 0, shear)?;
         for row in point_rows {
             let norm = row.iter().map(|v| v.norm()).fold(0.0, f64::max).max(1e-300);
             rows.push(row.into_iter().map(|v| v / norm).collect());
