@@ -27,7 +27,7 @@ pub fn summary(r: &RiemannMatrix, equation: &str) -> String {
     let p = &r.periods;
     let diffs = &p.forms;
     let paths = if p.plane.is_some() {
-        format!("{} keyhole loops about the critical values, {} quadrature nodes (rules of 16 and {} points; error estimated)", p.edges, p.nodes, p.largest_rule)
+        format!("{} keyhole loops about the critical values, {} quadrature nodes (rules of 16 and {} points; error estimated, differentials checked by a second computation)", p.edges, p.nodes, p.largest_rule)
     } else {
         format!("{} edges, {} nodes (largest rule {})", p.edges, p.nodes, p.largest_rule)
     };
@@ -166,8 +166,13 @@ pub fn j_of_matrix(m: &[Vec<Num>], error: f64, span: Span) -> Result<Valued, Fai
     if !(t.im > 0.0) {
         return Err(fail(Code::NotRiemannMatrix, span, format!("Im tau must be positive; it is {:.3e}", t.im)));
     }
-    let (j, e) = crate::periods::modular::j_of_tau(t, error)
-        .ok_or_else(|| fail(Code::EvalFailed, span, "the q-series for j did not converge"))?;
+    let (j, e) = crate::periods::modular::j_of_tau(t, error).ok_or_else(|| {
+        fail(
+            Code::EvalFailed,
+            span,
+            format!("no bound on j is shown: the error of tau ({error:.1e}) is too large where j is evaluated"),
+        )
+    })?;
     let value = if j.im.abs() <= e { Num::Real(j.re) } else { Num::Complex(j) };
     Ok(Valued { value: Value::Num(value), error_bound: e, reason: Some("from Eisenstein series E4, E6".into()) })
 }

@@ -93,9 +93,14 @@ pub fn riemann_matrix(p: Periods, reduce: bool) -> Result<RiemannMatrix, PeriodE
     let g = p.genus;
     let (raw, error) = quotient(&p.a, &p.b, p.a_error, p.b_error)
         .ok_or_else(|| PeriodError::Accuracy("the a-period matrix is singular".into()))?;
+    if !(p.validation < f64::INFINITY) {
+        return Err(PeriodError::Accuracy(
+            "two independent computations of the holomorphic differentials do not give a Riemann matrix".into(),
+        ));
+    }
     let symmetry_defect = asymmetry(&raw);
     let mut tau = (&raw + raw.transpose()) * C64::new(0.5, 0.0);
-    let mut error = error.max(symmetry_defect);
+    let mut error = error.max(symmetry_defect).max(p.validation);
     let min_eig = |t: &DMatrix<C64>| t.map(|v| v.im).symmetric_eigenvalues().min();
     let mut min_eig_im = min_eig(&tau);
     if !(min_eig_im > error) {
@@ -122,10 +127,12 @@ pub fn riemann_matrix(p: Periods, reduce: bool) -> Result<RiemannMatrix, PeriodE
             let b2_err = p.a_error * rows(&gb) + p.b_error * rows(&ga);
             // A second valid bound: tau' - tau_exact' = X^T (tau - tau_exact) X with
             // X = (c tau + d)^-1, and |(X^T E X)_ij| <= max|E| ||X||_1^2. The smaller wins.
-            let through_x = (&gc * &tau + &gd).try_inverse().map_or(f64::INFINITY, |x| error * norm_1(&x).powi(2));
+            let x_norm = (&gc * &tau + &gd).try_inverse().map_or(f64::INFINITY, |x| norm_1(&x).powi(2));
+            let through_x = error * x_norm;
             if let Some((raw2, err2)) = quotient(&a2, &b2, a2_err, b2_err) {
                 tau = (&raw2 + raw2.transpose()) * C64::new(0.5, 0.0);
-                error = err2.min(through_x).max(asymmetry(&raw2)).max(symmetry_defect);
+                // The validation difference is not in a_error, b_error: it maps like any error of tau.
+                error = err2.min(through_x).max(asymmetry(&raw2)).max(symmetry_defect).max(p.validation * x_norm);
                 min_eig_im = min_eig(&tau);
                 reduced = Some(s.gamma);
                 a_basis = a2;

@@ -12,20 +12,44 @@ use std::f64::consts::PI;
 
 /// j(tau) and a bound on its error given a bound on tau's error.
 pub fn j_of_tau(tau: C64, tau_error: f64) -> Option<(C64, f64)> {
-    if !(tau.im > 0.0) || !tau.re.is_finite() {
+    if !(tau.im > 0.0) || !tau.re.is_finite() || !(tau_error >= 0.0) {
         return None;
     }
     let (mut t, mut err) = (tau, tau_error);
     for _ in 0..1000 {
         t.re -= t.re.round();
         if t.norm_sqr() < 1.0 - 1e-15 {
-            // tau -> -1/tau scales errors by 1 / |tau|^2.
-            err /= t.norm_sqr();
+            // |-1/(t + d) + 1/t| = |d| / (|t| |t + d|) <= err / (|t| (|t| - err)).
+            let r = t.norm();
+            if !(err < 0.5 * r) {
+                return None;
+            }
+            err /= r * (r - err);
             t = -1.0 / t;
         } else {
             break;
         }
     }
+    // |j'| can grow fast across the disc |d| <= err (like e^(2 pi err) high up, and near
+    // the zeros of E4 and E6 from nearly nothing): refuse discs wider than a small fraction
+    // of Im t, and take the largest |j'| on the disc's centre and rim with that growth.
+    if !(err <= 0.05 * t.im) {
+        return None;
+    }
+    let (j, dj0) = j_and_slope(t)?;
+    let mut slope = dj0;
+    for k in 0..8 {
+        let p = t + C64::from_polar(err, std::f64::consts::TAU * k as f64 / 8.0);
+        slope = slope.max(j_and_slope(p)?.1);
+    }
+    let slope = slope * (2.0 * PI * err).exp() * 1.25;
+    // Rounding: q = exp(2 pi i t) carries about |2 pi t| ulps, the series a few more.
+    let rounding = 1e-14 * (1.0 + t.norm()) * j.norm().max(1.0);
+    Some((j, slope * err + rounding))
+}
+
+/// j(t) and |j'(t)| = 2 pi |E6 / E4 j| for t in (or near) the fundamental domain.
+fn j_and_slope(t: C64) -> Option<(C64, f64)> {
     let q = (C64::new(0.0, 2.0 * PI) * t).exp();
     let (mut e4, mut e6) = (C64::new(0.0, 0.0), C64::new(0.0, 0.0));
     let mut qn = C64::new(1.0, 0.0);
@@ -62,9 +86,8 @@ pub fn j_of_tau(tau: C64, tau_error: f64) -> Option<(C64, f64)> {
         delta *= (1.0 - qn).powi(24);
     }
     let j = e4 * e4 * e4 / delta;
-    // j' = -2 pi i (E6 / E4) j.
-    let dj = 2.0 * PI * (j * e6 / e4).norm();
-    Some((j, dj * err + 1e-14 * j.norm().max(1.0)))
+    // j' = -2 pi i (E6 / E4) j = -2 pi i E6 E4^2 / Delta (no division by E4 near rho).
+    Some((j, 2.0 * PI * (e6 * e4 * e4 / delta).norm()))
 }
 
 #[cfg(test)]

@@ -17,7 +17,7 @@
 
 use super::quad;
 use super::symplectic::symplectic_basis;
-use super::tree::{edge_coordinate, spanning_tree, Edge};
+use super::tree::{spanning_tree, Edge, Offset};
 use crate::algebra::roots::refined_roots;
 use crate::algebra::upoly::UPoly;
 use nalgebra::DMatrix;
@@ -60,6 +60,10 @@ pub struct Periods {
     /// Bounds on the entries' errors.
     pub a_error: f64,
     pub b_error: f64,
+    /// A posteriori: the largest entry of the difference between A^-1 B and the same from an
+    /// independent computation of the differentials (0 when there is none); the stated
+    /// error of tau is at least this.
+    pub validation: f64,
     pub branch_points: Vec<C64>,
     pub edges: usize,
     /// Quadrature nodes used, summed over edges and exponents j.
@@ -99,8 +103,9 @@ pub fn holomorphic_basis(m: u32, n: u32) -> Vec<Differential> {
 /// Continuous logarithm of (t - u) for t on [-1, 1] and u off it: log(-u) + log(1 - t/u),
 /// whose cut (t on the ray from u away from 0) misses every Bernstein ellipse that
 /// excludes u.
-fn log_branch(t: C64, u: C64) -> C64 {
-    (-u).ln() + (C64::new(1.0, 0.0) - t / u).ln()
+fn log_branch(u_minus_t: C64, u: C64) -> C64 {
+    // 1 - t/u = (u - t)/u, from an accurately computed u - t.
+    (-u).ln() + (u_minus_t / u).ln()
 }
 
 struct EdgeData {
@@ -146,7 +151,8 @@ pub fn periods(m: u32, f: &UPoly, tol: f64) -> Result<Periods, PeriodError> {
     let refined = refined_roots(f);
     let roots: Vec<C64> = refined.iter().map(|r| r.0).collect();
     let scale = roots.iter().map(|r| r.norm()).fold(1.0, f64::max);
-    let radius = refined.iter().map(|r| r.1).fold(0.0, f64::max);
+    let radii: Vec<f64> = refined.iter().map(|r| r.1).collect();
+    let radius = radii.iter().copied().fold(0.0, f64::max);
     let min_gap = (0..roots.len())
         .flat_map(|i| (i + 1..roots.len()).map(move |j| (i, j)))
         .map(|(i, j)| (roots[i] - roots[j]).norm())
@@ -163,7 +169,7 @@ pub fn periods(m: u32, f: &UPoly, tol: f64) -> Result<Periods, PeriodError> {
     let mut largest_rule = 0;
     let mut edges = vec![];
     for e in &tree {
-        let (d, used, big) = edge_integrals(m, lead, &roots, e, &diffs, tol)?;
+        let (d, used, big) = edge_integrals(m, lead, &roots, &radii, e, &diffs, tol)?;
         nodes += used;
         largest_rule = largest_rule.max(big);
         edges.push(d);
@@ -261,6 +267,7 @@ pub fn periods(m: u32, f: &UPoly, tol: f64) -> Result<Periods, PeriodError> {
         b,
         a_error,
         b_error,
+        validation: 0.0,
         branch_points: roots,
         edges: edges.len(),
         nodes,
@@ -281,10 +288,12 @@ struct Piece {
 /// of close roots) gets pieces graded down to its distance, each converging fast.
 const SPLIT_RHO: f64 = 1.8;
 
-fn pieces(us: &[C64]) -> Vec<Piece> {
-    fn rho(us: &[C64], lo: f64, hi: f64) -> f64 {
+fn pieces(us: &[Offset]) -> Vec<Piece> {
+    fn rho(us: &[Offset], lo: f64, hi: f64) -> f64 {
         let local = |z: C64| (2.0 * z - lo - hi) / (hi - lo);
-        let mut r = us.iter().map(|&u| quad::rho_of(local(u))).fold(f64::INFINITY, f64::min);
+        // (u - c) / h from the offsets, so a branch point ulps from the edge's end is placed right.
+        let mut r =
+            us.iter().map(|o| quad::rho_of(-2.0 * o.from_centre(lo, hi) / (hi - lo))).fold(f64::INFINITY, f64::min);
         if lo > -1.0 {
             r = r.min(quad::rho_of(local(C64::new(-1.0, 0.0))));
         }
@@ -298,7 +307,8 @@ fn pieces(us: &[C64]) -> Vec<Piece> {
     while let Some((lo, hi, depth)) = stack.pop() {
         crate::limits::checkpoint();
         let r = rho(us, lo, hi);
-        if r >= SPLIT_RHO || depth >= 60 || hi - lo < 1e-13 {
+        // Pieces stay dyadic and at least a few ulps wide, so lo + 1 and hi - 1 stay exact.
+        if r >= SPLIT_RHO || depth >= 60 || hi - lo < 8.0 * f64::EPSILON {
             out.push(Piece { lo, hi, rho: r });
         } else {
             let mid = 0.5 * (lo + hi);
@@ -315,6 +325,7 @@ fn edge_integrals(
     m: u32,
     lead: f64,
     roots: &[C64],
+    radii: &[f64],
     e: &Edge,
     diffs: &[Differential],
     tol: f64,
@@ -323,13 +334,23 @@ fn edge_integrals(
     let half = (pb - pa) / 2.0;
     let mid = (pa + pb) / 2.0;
     let n = roots.len();
-    let us: Vec<C64> = (0..n).filter(|&k| k != e.a && k != e.b).map(|k| edge_coordinate(pa, pb, roots[k])).collect();
+    let others: Vec<usize> = (0..n).filter(|&k| k != e.a && k != e.b).collect();
+    let us: Vec<Offset> = others.iter().map(|&k| Offset::new(pa, pb, roots[k])).collect();
+    // How far each u - t may be off, absolutely: rounding in the offsets (a few ulps of 2 + |d|)
+    // and the roots' inclusion radii (moving u by 2 delta / |b - a|).
+    let u_err: Vec<f64> = others
+        .iter()
+        .zip(&us)
+        .map(|(&k, o)| {
+            let d = o.d_lo.norm().min(o.d_hi.norm());
+            4.0 * f64::EPSILON * (2.0 + d) + 2.0 * (radii[k] + radii[e.a] + radii[e.b]) * (1.0 + d) / (pb - pa).norm()
+        })
+        .collect();
     let mf = m as f64;
     // y_e = Ce (1 - t^2)^(1/m) prod (t - u_k)^(1/m), Ce^m = -lead half^n.
     let log_ce = (C64::new(-lead, 0.0).ln() + n as f64 * half.ln()) / mf;
-    let sum_log = |t: C64| -> C64 { us.iter().map(|&u| log_branch(t, u)).sum() };
-    let arg_a = log_ce.im + sum_log(C64::new(-1.0, 0.0)).im / mf;
-    let arg_b = log_ce.im + sum_log(C64::new(1.0, 0.0)).im / mf;
+    let arg_a = log_ce.im + us.iter().map(|o| log_branch(o.d_lo, o.u)).sum::<C64>().im / mf;
+    let arg_b = log_ce.im + us.iter().map(|o| log_branch(o.d_hi, o.u)).sum::<C64>().im / mf;
 
     let mut integrals = vec![C64::new(0.0, 0.0); diffs.len()];
     let mut errors = vec![0.0; diffs.len()];
@@ -343,18 +364,24 @@ fn edge_integrals(
         let (left, right) = (lo == -1.0, hi == 1.0);
         // log(t - u) continuous on the piece with its cut outside the piece's ellipses, shifted
         // by 2 pi i k to equal the edge-wide branch (so y_e stays one branch along the edge).
-        let centre = C64::new(cp, 0.0);
+        // Everything below is written in the piece's coordinate s (t = c + hp s), with
+        // c - u from the offsets and 1 -+ t from the exact dyadic ends: near a cluster of
+        // branch points t - u is tiny and t and u themselves carry no accurate difference.
+        let c_u: Vec<C64> = us.iter().map(|o| o.from_centre(lo, hi)).collect();
         let shifts: Vec<(C64, C64)> = us
             .iter()
-            .map(|&u| {
-                let local = (centre - u).ln();
-                let k = ((log_branch(centre, u) - local).im / (2.0 * PI)).round();
-                (u, local + C64::new(0.0, 2.0 * PI * k))
+            .zip(&c_u)
+            .map(|(o, &cu)| {
+                let local = cu.ln();
+                let k = ((log_branch(-cu, o.u) - local).im / (2.0 * PI)).round();
+                (cu, local + C64::new(0.0, 2.0 * PI * k))
             })
             .collect();
-        let piece_log = |t: C64| -> C64 {
-            shifts.iter().map(|&(u, base)| base + (C64::new(1.0, 0.0) + (t - centre) / (centre - u)).ln()).sum()
-        };
+        let piece_log =
+            |s: f64| -> C64 { shifts.iter().map(|&(cu, base)| base + (C64::new(1.0, 0.0) + hp * s / cu).ln()).sum() };
+        // Relative error of y_e^-j / j at s: sum over the other branch points of |d(u - t)| / |u - t|.
+        let amp = |s: f64| -> f64 { c_u.iter().zip(&u_err).map(|(&cu, &e)| e / (cu + hp * s).norm()).sum() };
+        let (one_minus_c, one_plus_c) = (0.5 * ((1.0 - lo) + (1.0 - hi)), 0.5 * ((lo + 1.0) + (hi + 1.0)));
         let rho_max = piece.rho.min(40.0);
         for j in 1..=max_j {
             let which: Vec<usize> = (0..diffs.len()).filter(|&l| diffs[l].j == j).collect();
@@ -363,22 +390,21 @@ fn edge_integrals(
             let ex = jf / mf;
             // The endpoint factors a piece does not take into its weight, and the constant
             // hp^(-j/m) of those it does: (1 -+ t) = hp (1 -+ s) at a touched end.
-            let ends = |t: C64| -> C64 {
+            let ends = |s: C64| -> C64 {
                 let mut f = C64::new(1.0, 0.0);
-                f *= if right { C64::new(hp.powf(-ex), 0.0) } else { (1.0 - t).powf(-ex) };
-                f *= if left { C64::new(hp.powf(-ex), 0.0) } else { (1.0 + t).powf(-ex) };
+                f *= if right { C64::new(hp.powf(-ex), 0.0) } else { (one_minus_c - hp * s).powf(-ex) };
+                f *= if left { C64::new(hp.powf(-ex), 0.0) } else { (one_plus_c + hp * s).powf(-ex) };
                 f
             };
             // |integrand / weight| at local s, largest over the powers i.
             let abs_g = |s: C64| -> f64 {
-                let t = centre + hp * s;
-                let x = (mid + half * t).norm();
+                let x = (mid + half * (cp + hp * s)).norm();
                 // One logarithm of the product of squared distances (no overflow for the
                 // degrees accepted: each factor is far from 0 and from 1e150).
-                let prod: f64 = us.iter().map(|&u| (t - u).norm_sqr()).product();
+                let prod: f64 = c_u.iter().map(|&cu| (cu + hp * s).norm_sqr()).product();
                 half.norm()
                     * hp
-                    * ends(t).norm()
+                    * ends(s).norm()
                     * x.max(1.0).powi(max_pow as i32)
                     * (-jf * (log_ce.re + 0.5 * prod.ln() / mf)).exp()
             };
@@ -408,11 +434,12 @@ fn edge_integrals(
             largest = largest.max(size);
             let rule = quad::rule(weight, size);
             let mut magnitude = vec![0.0; which.len()];
+            let mut amplified = vec![0.0; which.len()];
             for (sn, w) in rule.nodes.iter().zip(&rule.weights) {
                 crate::limits::checkpoint();
-                let t = centre + hp * sn;
-                let x = mid + half * t;
-                let base = half * hp * *w * ends(t) * (-jf * (log_ce + piece_log(t) / mf)).exp();
+                let x = mid + half * (cp + hp * sn);
+                let base = half * hp * *w * ends(C64::new(*sn, 0.0)) * (-jf * (log_ce + piece_log(*sn) / mf)).exp();
+                let rel = ex * amp(*sn);
                 let mut xp = C64::new(1.0, 0.0);
                 let mut pow = 0;
                 for (slot, &l) in which.iter().enumerate() {
@@ -423,11 +450,13 @@ fn edge_integrals(
                     let term = base * xp;
                     integrals[l] += term;
                     magnitude[slot] += term.norm();
+                    amplified[slot] += term.norm() * rel;
                 }
             }
             for (slot, &l) in which.iter().enumerate() {
-                // Rounding: each term carries about n + a few ulps (the log sum), the sum N more.
-                errors[l] += bound + 2.0 * (size + n) as f64 * f64::EPSILON * magnitude[slot];
+                // Rounding: each term carries about n + a few ulps (the log sum), the sum N more;
+                // plus the offsets' and roots' errors, amplified by 1 / |u - t|.
+                errors[l] += bound + 2.0 * (size + n) as f64 * f64::EPSILON * magnitude[slot] + amplified[slot];
             }
         }
     }

@@ -25,6 +25,32 @@ pub fn edge_coordinate(a: C64, b: C64, z: C64) -> C64 {
     (2.0 * z - a - b) / (b - a)
 }
 
+/// Another branch point in an edge's coordinate, with its offsets from both ends computed
+/// from root differences: when it lies within a few ulps of the edge's length from an end,
+/// u itself has lost all relative accuracy in u + 1 or u - 1, which the integrand needs.
+#[derive(Clone, Copy, Debug)]
+pub struct Offset {
+    pub u: C64,
+    /// u + 1 = 2 (z - a) / (b - a) and u - 1 = 2 (z - b) / (b - a).
+    pub d_lo: C64,
+    pub d_hi: C64,
+}
+
+impl Offset {
+    pub fn new(a: C64, b: C64, z: C64) -> Offset {
+        Offset { u: edge_coordinate(a, b, z), d_lo: 2.0 * (z - a) / (b - a), d_hi: 2.0 * (z - b) / (b - a) }
+    }
+    /// c - u for c = (lo + hi) / 2 with lo, hi dyadic in [-1, 1] (so lo + 1 and hi - 1
+    /// are exact), taken from the nearer end.
+    pub fn from_centre(&self, lo: f64, hi: f64) -> C64 {
+        if self.d_lo.norm() <= self.d_hi.norm() {
+            0.5 * ((lo + 1.0) + (hi + 1.0)) - self.d_lo
+        } else {
+            0.5 * ((lo - 1.0) + (hi - 1.0)) - self.d_hi
+        }
+    }
+}
+
 fn orient(p: C64, q: C64, r: C64) -> f64 {
     (q - p).re * (r - p).im - (q - p).im * (r - p).re
 }

@@ -174,7 +174,7 @@ fn singular_points(
 
 /// The point with projective coordinates `p` (old coordinates) in the chart Z = 1 of the
 /// new ones, where (old) = change (new): Cramer's rule, exact until the final rounding.
-fn in_chart(change: &[[i64; 3]; 3], p: &[BigRational; 3]) -> Option<(C64, C64)> {
+fn in_chart(change: &[[i64; 3]; 3], p: &[BigRational; 3]) -> Option<(BigRational, BigRational)> {
     let m = |r: usize, c: usize| q(change[r][c]);
     let det3 = |col: usize, with: Option<&[BigRational; 3]>| -> BigRational {
         let e = |r: usize, c: usize| match with {
@@ -192,7 +192,7 @@ fn in_chart(change: &[[i64; 3]; 3], p: &[BigRational; 3]) -> Option<(C64, C64)> 
     if n[2].is_zero() {
         return None;
     }
-    Some((C64::new(to_f64(&(&n[0] / &n[2])), 0.0), C64::new(to_f64(&(&n[1] / &n[2])), 0.0)))
+    Some((&n[0] / &n[2], &n[1] / &n[2]))
 }
 
 /// Newton's method in (x, y) on d^o G / dx^o and d^o G / dy^o.
@@ -475,9 +475,11 @@ pub fn periods(poly: &Poly, projective: bool, facts: &CurveFacts, genus: i64) ->
     // exact, and only the irrational ones are located numerically (a point of high
     // multiplicity found from a cluster of fibre roots is off by about eps^(1/m)).
     let mut singular: Vec<(C64, C64, u32)> = vec![];
+    let mut exact = vec![];
     for p in &facts.rational {
         if let (Ok(l), Some((x, y))) = (&p.local, in_chart(&change, &p.coords)) {
-            singular.push((x, y, l.multiplicity));
+            singular.push((C64::new(to_f64(&x), 0.0), C64::new(to_f64(&y), 0.0), l.multiplicity));
+            exact.push(Some(adjoint::ExactPoint::new(&chart, &x, &y)));
             if let Some(k) = wanted.get_mut(&l.multiplicity) {
                 *k -= 1;
             }
@@ -486,6 +488,7 @@ pub fn periods(poly: &Poly, projective: bool, facts: &CurveFacts, genus: i64) ->
     wanted.retain(|_, k| *k > 0);
     let known = singular.clone();
     singular.extend(singular_points(&plane, &critical, &wanted, &known));
+    exact.resize(singular.len(), None);
     if singular.len() != facts.singular_count() {
         return Err(PeriodError::Accuracy(format!(
             "{} singular points found numerically, the exact algebra has {}",
@@ -494,7 +497,7 @@ pub fn periods(poly: &Poly, projective: bool, facts: &CurveFacts, genus: i64) ->
         )));
     }
     let mut numeric_delta = 0u64;
-    let diffs = adjoint::holomorphic(&plane, &singular, genus as usize, &mut numeric_delta);
+    let diffs = adjoint::holomorphic(&plane, &singular, &exact, None, genus as usize, &mut numeric_delta);
     let arithmetic = ((d - 1) * (d - 2) / 2) as i64;
     if arithmetic - numeric_delta as i64 != genus {
         return Err(PeriodError::Accuracy(format!(
@@ -504,19 +507,34 @@ pub fn periods(poly: &Poly, projective: bool, facts: &CurveFacts, genus: i64) ->
         )));
     }
     let diffs = diffs.map_err(PeriodError::Accuracy)?;
+    // A posteriori check of the differentials: the same adjoint conditions again with every
+    // blow-up in sheared coordinates (other tangent polynomials, other roots, other
+    // rounding), integrated along the same loops. The two Riemann matrices must agree; twice
+    // their difference bounds the stated error from below. A smooth curve's differentials
+    // are exact.
+    let second = if singular.is_empty() {
+        None
+    } else {
+        adjoint::holomorphic(&plane, &singular, &exact, Some(C64::new(-0.377, 0.529)), genus as usize, &mut 0)
+            .ok()
+            .filter(|d| d.basis.ncols() == genus as usize)
+    };
+    let both = match &second {
+        Some(s) => {
+            let mut m = DMatrix::<C64>::zeros(diffs.basis.nrows(), 2 * genus as usize);
+            m.columns_mut(0, genus as usize).copy_from(&diffs.basis);
+            m.columns_mut(genus as usize, genus as usize).copy_from(&s.basis);
+            m
+        }
+        None => diffs.basis.clone(),
+    };
 
     let b0 = base_point(&critical)?;
     let fibre0 = plane::roots(&plane.fibre(b0));
     let n = critical.len();
     let rule_nodes = merged_rules();
-    let mut walk = Walk {
-        g: &plane,
-        monomials: &diffs.monomials,
-        basis: &diffs.basis,
-        rule_nodes: &rule_nodes,
-        steps: 0,
-        nodes: 0,
-    };
+    let mut walk =
+        Walk { g: &plane, monomials: &diffs.monomials, basis: &both, rule_nodes: &rule_nodes, steps: 0, nodes: 0 };
     let mut sigma = vec![];
     // loop_periods[i][s][monomial], and each loop's error estimate.
     let mut loop_periods = vec![];
@@ -554,7 +572,7 @@ pub fn periods(poly: &Poly, projective: bool, facts: &CurveFacts, genus: i64) ->
         let (circ, circ_err, back) = walk.integrate(&arcs, &at_p)?;
         let perm = permutation(&at_p, &back)?;
         let per: Vec<Vec<C64>> = (0..plane.d)
-            .map(|s| (0..genus as usize).map(|l| seg[s][l] + circ[s][l] - seg[perm[s]][l]).collect())
+            .map(|s| (0..both.ncols()).map(|l| seg[s][l] + circ[s][l] - seg[perm[s]][l]).collect())
             .collect();
         loop_periods.push(per);
         loop_errors.push(2.0 * seg_err + circ_err);
@@ -603,11 +621,11 @@ pub fn periods(poly: &Poly, projective: bool, facts: &CurveFacts, genus: i64) ->
     let cycle_periods: Vec<(Vec<C64>, f64)> = cycles
         .iter()
         .map(|c| {
-            let mut v = vec![C64::new(0.0, 0.0); gg];
+            let mut v = vec![C64::new(0.0, 0.0); both.ncols()];
             let mut e = 0.0;
             for st in c {
                 let sign = if st.forward { 1.0 } else { -1.0 };
-                for l in 0..gg {
+                for l in 0..both.ncols() {
                     v[l] += loop_periods[st.lp][st.sheet][l] * sign;
                 }
                 e += loop_errors[st.lp];
@@ -615,7 +633,8 @@ pub fn periods(poly: &Poly, projective: bool, facts: &CurveFacts, genus: i64) ->
             (v, e)
         })
         .collect();
-    let assemble = |vecs: &[Vec<i64>]| -> (DMatrix<C64>, f64) {
+    // Rows `from..from + g` of the cycle periods: the first basis, or the second.
+    let assemble = |vecs: &[Vec<i64>], from: usize| -> (DMatrix<C64>, f64) {
         let mut out = DMatrix::<C64>::zeros(gg, gg);
         let mut err = 0.0f64;
         for (j, coeffs) in vecs.iter().enumerate() {
@@ -626,15 +645,27 @@ pub fn periods(poly: &Poly, projective: bool, facts: &CurveFacts, genus: i64) ->
                 }
                 e += (w as f64).abs() * cycle_periods[c].1;
                 for l in 0..gg {
-                    out[(l, j)] += cycle_periods[c].0[l] * w as f64;
+                    out[(l, j)] += cycle_periods[c].0[from + l] * w as f64;
                 }
             }
             err = err.max(e);
         }
         (out, err)
     };
-    let (a, a_error) = assemble(&basis.a);
-    let (b, b_error) = assemble(&basis.b);
+    let (a, a_error) = assemble(&basis.a, 0);
+    let (b, b_error) = assemble(&basis.b, 0);
+    let validation = match second {
+        None => 0.0,
+        Some(_) => {
+            let (a2, b2) = (assemble(&basis.a, gg).0, assemble(&basis.b, gg).0);
+            match (a.clone().try_inverse(), a2.try_inverse()) {
+                // Twice the difference: the two errors are of one size and need not point apart
+                // (with the tacnode tangents unrefined, the difference alone fell 3% short).
+                (Some(ai), Some(a2i)) => 2.0 * (ai * &b - a2i * b2).iter().map(|v| v.norm()).fold(0.0, f64::max),
+                _ => f64::INFINITY,
+            }
+        }
+    };
     let covering = Covering {
         change,
         sheets: plane.d,
@@ -657,6 +688,7 @@ pub fn periods(poly: &Poly, projective: bool, facts: &CurveFacts, genus: i64) ->
         b,
         a_error,
         b_error,
+        validation,
         branch_points: critical,
         edges: n,
         nodes: walk.nodes,
