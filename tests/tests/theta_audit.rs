@@ -10,13 +10,8 @@ use nalgebra::DMatrix;
 use num_complex::Complex64 as C64;
 use serde_json::Value;
 
-fn cx(v: &Value) -> C64 {
-    C64::new(v[0].as_f64().unwrap(), v[1].as_f64().unwrap())
-}
-
-fn floats(v: &Value) -> Vec<f64> {
-    v.as_array().unwrap().iter().map(|x| x.as_f64().unwrap()).collect()
-}
+mod fixture;
+use fixture::{cx, floats};
 
 #[test]
 fn every_theta_bound_holds_on_hostile_inputs() {

@@ -8,13 +8,8 @@ use nalgebra::DMatrix;
 use num_complex::Complex64 as C64;
 use serde_json::Value;
 
-fn cx(v: &Value) -> C64 {
-    C64::new(v[0].as_f64().unwrap(), v[1].as_f64().unwrap())
-}
-
-fn floats(v: &Value) -> Vec<f64> {
-    v.as_array().unwrap().iter().map(|x| x.as_f64().unwrap()).collect()
-}
+mod fixture;
+use fixture::{cx, floats};
 
 #[test]
 fn theta_matches_mpmath_and_flint_within_its_own_bound() {
