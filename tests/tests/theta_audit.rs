@@ -89,3 +89,38 @@ fn the_bound_is_honest_but_not_useless_for_small_imaginary_parts() {
     assert!(diff <= got.full_error(), "{} ± {:.2e}", got.full(), got.full_error());
     assert!(got.full_error() < 1e-8, "bound {:.2e} is too loose to be useful", got.full_error());
 }
+
+#[test]
+fn theta_of_decimal_inputs_covers_their_rounding() {
+    // The references are for the exact decimals the file states (mpmath direct sums,
+    // tests/fixtures/gen/theta_hostile.py), so the bound must cover the inputs' rounding,
+    // carried through the reduction for small Im tau.
+    use kelp_evaluator::value::Value as V;
+    let doc: Value = serde_json::from_str(include_str!("../fixtures/theta_hostile.json")).unwrap();
+    let cases = doc["decimal_cases"].as_array().unwrap();
+    assert!(cases.len() >= 5);
+    for case in cases {
+        let expr = case["expr"].as_str().unwrap();
+        let p = |k: usize| case["value"][k].as_str().unwrap().parse::<f64>().unwrap();
+        let want = C64::new(p(0), p(1));
+        let src = format!("set tolerance = 1e-15\nlet v = {expr}\n");
+        let c = kelp_lang::check(&src);
+        assert!(!c.has_errors(), "{expr}: {:?}", c.diagnostics);
+        let e = kelp_evaluator::evaluate(&c, &src, &kelp_evaluator::Mode::Check);
+        let v = e.values.iter().find(|v| v.name == "v").unwrap_or_else(|| panic!("{expr}: {:?}", e.diagnostics));
+        let V::Num(n) = &v.value.value else { panic!("{expr}") };
+        let diff = (n.to_complex() - want).norm();
+        let allowed = v.value.error_bound + 2.0 * f64::EPSILON * want.norm();
+        assert!(
+            diff <= allowed,
+            "{expr}: kelp {} ± {:.2e}, mpmath {want}, difference {diff:.2e}",
+            n,
+            v.value.error_bound
+        );
+        assert!(
+            v.value.error_bound < 1e-9 * want.norm().max(1.0),
+            "{expr}: bound {:.2e} too loose",
+            v.value.error_bound
+        );
+    }
+}
