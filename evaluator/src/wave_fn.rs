@@ -8,9 +8,9 @@ use crate::theta::ThetaContext;
 use crate::value::{Value, Valued};
 use crate::waves::krichever::Place;
 use crate::waves::rational::RationalWave;
+use crate::waves::regular::{self, Verdict};
 use crate::waves::soliton::Soliton;
 use crate::waves::theta_wave::{dubrovin_constants, ThetaWave};
-use crate::waves::regular::{self, Verdict};
 use crate::waves::{Wave, WaveKind, KP_FORM};
 use kelp_lang::ast::{Arg, Axis, AxisKind, Expr, Ident, OutputKind, StrLit};
 use kelp_lang::{Code, Diagnostic, Span};
@@ -269,7 +269,19 @@ impl Evaluator<'_> {
                 let v = vecs.pop().unwrap();
                 let u = vecs.pop().unwrap();
                 let origin = format!("theta wave of genus {g} from explicit data");
-                Wave { kind: WaveKind::Theta(ThetaWave { ctx, u, v, w, shift, c, accuracy: 1e-14, moments: Default::default() }), origin }
+                Wave {
+                    kind: WaveKind::Theta(ThetaWave {
+                        ctx,
+                        u,
+                        v,
+                        w,
+                        shift,
+                        c,
+                        accuracy: 1e-14,
+                        moments: Default::default(),
+                    }),
+                    origin,
+                }
             }
             "shallow_water" => return self.water_call(span, args),
             _ => return self.krichever_call(span, args),
@@ -448,7 +460,16 @@ impl Evaluator<'_> {
             k.local_parameter
         );
         let wave = Wave {
-            kind: WaveKind::Theta(ThetaWave { ctx, u: k.u, v: k.v, w: k.w, shift, c: cc, accuracy: 1e-14, moments: Default::default() }),
+            kind: WaveKind::Theta(ThetaWave {
+                ctx,
+                u: k.u,
+                v: k.v,
+                w: k.w,
+                shift,
+                c: cc,
+                accuracy: 1e-14,
+                moments: Default::default(),
+            }),
             origin,
         };
         Ok(Valued { value: Value::Wave(Arc::new(wave)), error_bound: r.error, reason: Some(detail) })
@@ -559,11 +580,15 @@ impl Evaluator<'_> {
                     _ => self.regular_by_signs(&w, &region, span)?,
                 };
                 match verdict {
-                    Verdict::Regular(why) => Ok(Valued { value: Value::Bool(true), error_bound: 0.0, reason: Some(why) }),
+                    Verdict::Regular(why) => {
+                        Ok(Valued { value: Value::Bool(true), error_bound: 0.0, reason: Some(why) })
+                    }
                     Verdict::Singular(why) => {
                         Ok(Valued { value: Value::Bool(false), error_bound: 0.0, reason: Some(why) })
                     }
-                    Verdict::Undecided(why) => Err(fail(Code::ClaimUndecided, span, format!("`regular` is undecided: {why}"))),
+                    Verdict::Undecided(why) => {
+                        Err(fail(Code::ClaimUndecided, span, format!("`regular` is undecided: {why}")))
+                    }
                 }
             }
         }

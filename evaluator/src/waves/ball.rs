@@ -123,13 +123,8 @@ pub fn kp_balls(f: &BallSeries, c: C64) -> (Ball, Ball) {
     let u = d(2, 0, 0).add(Ball::exact(c));
     let ux = d(3, 0, 0);
     let uxx = d(4, 0, 0);
-    let terms = [
-        d(2, 2, 0).scale(3.0),
-        d(6, 0, 0),
-        ux.mul(ux).scale(6.0),
-        u.mul(uxx).scale(6.0),
-        d(3, 0, 1).scale(-4.0),
-    ];
+    let terms =
+        [d(2, 2, 0).scale(3.0), d(6, 0, 0), ux.mul(ux).scale(6.0), u.mul(uxx).scale(6.0), d(3, 0, 1).scale(-4.0)];
     let r = terms.iter().skip(1).fold(terms[0], |acc, t| acc.add(*t));
     (u, r)
 }

@@ -87,13 +87,15 @@ impl Wave {
                 return Ok(p);
             }
         };
-        let undecided = || AtError {
+        let undecided = || {
+            AtError {
             undecided: true,
             message: format!(
                 "tau cannot be shown nonzero at (x, y, t) = ({x}, {y}, {t}): |tau| = {:.3e} is within its error bound {:.3e}, so u has no bound there",
                 b.0[0].c.norm(),
                 b.0[0].r
             ),
+        }
         };
         let f = b.log_normalised().ok_or_else(undecided)?;
         let (ub, rb) = ball::kp_balls(&f, c);

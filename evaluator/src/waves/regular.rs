@@ -37,7 +37,8 @@ pub fn theta_regular<E>(
 ) -> Result<Verdict, E> {
     if !w.real_directions() {
         return Ok(Verdict::Undecided(
-            "U, V or W is complex, so Im z (and theta's size) varies over the region: kelp has no gradient bound there".into(),
+            "U, V or W is complex, so Im z (and theta's size) varies over the region: kelp has no gradient bound there"
+                .into(),
         ));
     }
     let norm = |d: &[num_complex::Complex64]| d.iter().map(|v| v.norm_sqr()).sum::<f64>().sqrt();

@@ -255,7 +255,8 @@ impl Soliton {
             for (kk, &(a, b, c)) in monomials().iter().enumerate() {
                 let e = self.expansions[i].0[kk];
                 let f = fact(a) * fact(b) * fact(c);
-                let hi = (s1.abs() + dp).powi(a as i32) * (s2.abs() + dq).powi(b as i32) * (s3.abs() + dr).powi(c as i32);
+                let hi =
+                    (s1.abs() + dp).powi(a as i32) * (s2.abs() + dq).powi(b as i32) * (s3.abs() + dr).powi(c as i32);
                 let lo = s1.abs().powi(a as i32) * s2.abs().powi(b as i32) * s3.abs().powi(c as i32);
                 let re = (hi - lo) / f * (1.0 + 4.0 * U) + (a + b + c + 4) as f64 * U * e.norm();
                 out.0[kk] = out.0[kk].add(wb.mul(Ball::new(e, up(re))));

@@ -70,7 +70,9 @@ impl ThetaWave {
     fn phase_error(&self, x: f64, y: f64, t: f64) -> f64 {
         let e2: f64 = (0..self.u.len())
             .map(|k| {
-                let s = self.shift[k].norm() + self.u[k].norm() * x.abs() + self.v[k].norm() * y.abs()
+                let s = self.shift[k].norm()
+                    + self.u[k].norm() * x.abs()
+                    + self.v[k].norm() * y.abs()
                     + self.w[k].norm() * t.abs();
                 (4.0 * U * s).powi(2)
             })
@@ -125,9 +127,7 @@ impl ThetaWave {
         self.u.iter().chain(&self.v).chain(&self.w).all(|v| v.im == 0.0)
     }
     pub fn real_theta(&self) -> bool {
-        self.real_directions()
-            && self.shift.iter().all(|v| v.im == 0.0)
-            && self.ctx.tau().iter().all(|v| v.re == 0.0)
+        self.real_directions() && self.shift.iter().all(|v| v.im == 0.0) && self.ctx.tau().iter().all(|v| v.re == 0.0)
     }
 
     /// theta, its first and second derivatives along U at (x, y, t) (exponential factor
