@@ -9,13 +9,13 @@ use kelp_evaluator::output::grid::Grid;
 use kelp_evaluator::waves::Wave;
 use kelp_evaluator::{evaluate, Mode, Value};
 use num_complex::Complex64 as C64;
-use std::rc::Rc;
+use std::sync::Arc;
 
 fn main() {
     divan::main();
 }
 
-fn wave(src: &str) -> Rc<Wave> {
+fn wave(src: &str) -> Arc<Wave> {
     let c = kelp_lang::check(src);
     let e = evaluate(&c, src, &Mode::Check);
     match &e.values.iter().find(|v| v.name == "w").expect("the benchmark wave evaluates").value.value {

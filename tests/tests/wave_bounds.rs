@@ -147,7 +147,9 @@ fn regular_is_proved_for_a_real_wave_and_not_claimed_across_a_zero() {
                wave z = theta_wave([[1i]], u = [1], v = [0.5], w = [0.3], c = 0, shift = [0.5 + 0.5i])\n\
                let a = regular(r1, x in -5..5, y in -2..2, t = 0)\n\
                let b = regular(r2, x in -3..3, y = 1, t in 0..1)\n\
-               let c = regular(z, x in -1..1, y = 0, t = 0)\n";
+               let c = regular(z, x in -1..1, y = 0, t = 0)\n\
+               let v = value(z, 0, 0, 0)\n\
+               let r = kp_residual(z, x in -0.1..0.1 step 0.05, y = 0, t = 0)\n";
     let e = eval(src);
     assert_eq!(verdict(&e, "a"), Ok(true));
     assert_eq!(verdict(&e, "b"), Ok(true));
@@ -158,4 +160,15 @@ fn regular_is_proved_for_a_real_wave_and_not_claimed_across_a_zero() {
         Ok(b) => assert!(!b),
         Err(d) => assert!(d.contains("K702") || d.contains("ClaimUndecided"), "{d}"),
     }
+    // At the zero itself (x = 0) neither u nor the residual has a bound: K702, not a number.
+    for name in ["v", "r"] {
+        let d = verdict_or_value(&e, name);
+        assert!(d.contains("ClaimUndecided") && d.contains("cannot be shown nonzero"), "{name}: {d}");
+    }
+}
+
+/// The diagnostics when `name` has no value.
+fn verdict_or_value(e: &kelp_evaluator::Evaluation, name: &str) -> String {
+    assert!(e.values.iter().all(|v| v.name != name), "{name} has a value");
+    format!("{:?}", e.diagnostics)
 }

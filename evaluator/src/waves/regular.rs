@@ -70,7 +70,10 @@ pub fn theta_regular<E>(
                 )));
             }
         }
-        let spread = (0..3).map(|i| h[i] * speed[i]).sum::<f64>() * p1 * 1.01;
+        // Half-widths widened past the rounding of the centres, so neighbouring cells overlap.
+        let spread = (0..3).map(|i| (h[i] * (1.0 + 1e-9) + 4.0 * super::ball::U * c[i].abs()) * speed[i]).sum::<f64>()
+            * p1
+            * 1.01;
         let lower = (b.c.norm() * (1.0 - 4.0 * super::ball::U) - b.r) - spread;
         if lower > 0.0 {
             lowest = lowest.min(lower);

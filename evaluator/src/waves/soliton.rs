@@ -165,10 +165,10 @@ impl Soliton {
                 let s2: f64 = cols.iter().map(|&c| sorted[c].powi(2)).sum();
                 let s3: f64 = cols.iter().map(|&c| sorted[c].powi(3)).sum();
                 terms.push((s1, s2, s3, coef.signum(), coef.abs().ln()));
-                // Exact minors are rounded once; a float minor by elimination carries
+                // Exact minors are rounded once (charged 2 u); a float minor by elimination carries
                 // Wilkinson's bound with growth factor 2^(k-1): 2^k k^2 u prod |rows| (Hadamard).
                 let det_rel = if exact {
-                    U
+                    2.0 * U
                 } else {
                     let rows: f64 = a
                         .iter()
@@ -243,9 +243,9 @@ impl Soliton {
                 + U * (l - top).abs();
             let w = (l - top).exp();
             if w < 1e-300 {
-                // Below every other term by 690 e-folds: charged as its whole size.
-                for b in out.0.iter_mut() {
-                    b.r = up(b.r + 1e-300);
+                // Below the largest term by 690 e-folds: charged as its whole size.
+                for (b, e) in out.0.iter_mut().zip(&self.expansions[i].0) {
+                    b.r = up(b.r + 2e-300 * (e.norm() + 1.0));
                 }
                 continue;
             }
