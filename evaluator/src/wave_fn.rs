@@ -8,6 +8,7 @@ use crate::theta::ThetaContext;
 use crate::value::{Value, Valued};
 use crate::waves::krichever::Place;
 use crate::waves::rational::RationalWave;
+use crate::waves::regular::{self, Verdict};
 use crate::waves::soliton::Soliton;
 use crate::waves::theta_wave::{dubrovin_constants, ThetaWave};
 use crate::waves::{Wave, WaveKind, KP_FORM};
@@ -268,7 +269,19 @@ impl Evaluator<'_> {
                 let v = vecs.pop().unwrap();
                 let u = vecs.pop().unwrap();
                 let origin = format!("theta wave of genus {g} from explicit data");
-                Wave { kind: WaveKind::Theta(ThetaWave { ctx, u, v, w, shift, c, accuracy: 1e-14 }), origin }
+                Wave {
+                    kind: WaveKind::Theta(ThetaWave {
+                        ctx,
+                        u,
+                        v,
+                        w,
+                        shift,
+                        c,
+                        accuracy: 1e-14,
+                        moments: Default::default(),
+                    }),
+                    origin,
+                }
             }
             "shallow_water" => return self.water_call(span, args),
             _ => return self.krichever_call(span, args),
@@ -447,7 +460,16 @@ impl Evaluator<'_> {
             k.local_parameter
         );
         let wave = Wave {
-            kind: WaveKind::Theta(ThetaWave { ctx, u: k.u, v: k.v, w: k.w, shift, c: cc, accuracy: 1e-14 }),
+            kind: WaveKind::Theta(ThetaWave {
+                ctx,
+                u: k.u,
+                v: k.v,
+                w: k.w,
+                shift,
+                c: cc,
+                accuracy: 1e-14,
+                moments: Default::default(),
+            }),
             origin,
         };
         Ok(Valued { value: Value::Wave(Arc::new(wave)), error_bound: r.error, reason: Some(detail) })
@@ -474,10 +496,14 @@ impl Evaluator<'_> {
                     return Err(fail(Code::MissingArgument, span, "`value` needs a wave and x, y, t"));
                 }
                 let (x, y, t) = (self.real(pos[1], "x")?, self.real(pos[2], "y")?, self.real(pos[3], "t")?);
-                let p = w.at(x, y, t).map_err(|m| fail(Code::EvalFailed, span, m))?;
+                let p = w.at(x, y, t).map_err(|m| at_fail(span, m))?;
                 let u = p.kp.u;
-                let err = 1e3 * p.tau_relative_error.max(f64::EPSILON) * (1.0 + u.norm());
-                let v = if u.im.abs() <= err { Num::Real(u.re) } else { Num::Complex(u) };
+                // A real answer drops Im u, which the bound then covers too.
+                let (v, err) = if u.im.abs() <= p.u_error {
+                    (Num::Real(u.re), p.u_error + u.im.abs())
+                } else {
+                    (Num::Complex(u), p.u_error)
+                };
                 let reason = match w.water() {
                     Some(water) => format!(
                         "surface elevation eta in metres at (x, y, t) in m, m, s ({}); {}",
@@ -505,7 +531,7 @@ impl Evaluator<'_> {
                     for &y in &region.y {
                         for &x in &region.x {
                             crate::limits::check().map_err(|m| fail(Code::BudgetExceeded, span, m))?;
-                            let p = w.at(x, y, t).map_err(|m| fail(Code::EvalFailed, span, m))?;
+                            let p = w.at(x, y, t).map_err(|m| at_fail(span, m))?;
                             scan.add((x, y, t), &p);
                         }
                     }
@@ -544,27 +570,69 @@ impl Evaluator<'_> {
                         "`regular` is decided exactly for solitons; for other waves give a region to sample",
                     ));
                 };
-                for &t in &region.t {
-                    for &y in &region.y {
-                        for &x in &region.x {
-                            crate::limits::check().map_err(|m| fail(Code::BudgetExceeded, span, m))?;
-                            if let Err(m) = w.at(x, y, t) {
-                                return Ok(Valued { value: Value::Bool(false), error_bound: 0.0, reason: Some(m) });
-                            }
-                        }
+                let verdict = match &w.kind {
+                    WaveKind::Theta(tw) => {
+                        let budget = crate::limits::current().max_points;
+                        let check = || crate::limits::check().map_err(|m| fail(Code::BudgetExceeded, span, m));
+                        let engine = |m: String| fail(Code::EvalFailed, span, m);
+                        regular::theta_regular(tw, [&region.x, &region.y, &region.t], budget, check, engine)?
+                    }
+                    _ => self.regular_by_signs(&w, &region, span)?,
+                };
+                match verdict {
+                    Verdict::Regular(why) => {
+                        Ok(Valued { value: Value::Bool(true), error_bound: 0.0, reason: Some(why) })
+                    }
+                    Verdict::Singular(why) => {
+                        Ok(Valued { value: Value::Bool(false), error_bound: 0.0, reason: Some(why) })
+                    }
+                    Verdict::Undecided(why) => {
+                        Err(fail(Code::ClaimUndecided, span, format!("`regular` is undecided: {why}")))
                     }
                 }
-                Ok(Valued {
-                    value: Value::Bool(true),
-                    error_bound: 0.0,
-                    reason: Some(format!(
-                        "tau is nonzero at all {} sample points (sampled, not a proof between them)",
-                        region.points()
-                    )),
-                })
             }
         }
     }
+
+    /// `regular` for rational and shallow-water waves: false when tau (real there) is shown
+    /// to change sign between two sample points, or when it is not finite; otherwise
+    /// undecided: samples are no proof between them.
+    fn regular_by_signs(&mut self, w: &Wave, region: &Region, span: Span) -> Result<Verdict, Fail> {
+        let mut signs: [Option<(f64, f64, f64)>; 2] = [None, None];
+        for &t in &region.t {
+            for &y in &region.y {
+                for &x in &region.x {
+                    crate::limits::check().map_err(|m| fail(Code::BudgetExceeded, span, m))?;
+                    let b = match &w.kind {
+                        WaveKind::Rational(r) => r.series_ball(x, y, t).0[0],
+                        _ => break,
+                    };
+                    if b.c.re.abs() > b.r {
+                        if region.points() == 1 {
+                            return Ok(Verdict::Regular(format!(
+                                "tau = {:.6e} with error at most {:.1e} at the region's one point",
+                                b.c.re, b.r
+                            )));
+                        }
+                        signs[(b.c.re < 0.0) as usize] = Some((x, y, t));
+                    }
+                    if let [Some(p), Some(n)] = signs {
+                        return Ok(Verdict::Singular(format!(
+                            "tau is a real polynomial with opposite signs at {p:?} and {n:?} (each outside its error ball), so it vanishes between them"
+                        )));
+                    }
+                }
+            }
+        }
+        Ok(Verdict::Undecided(format!(
+            "tau of this {} wave is not proved nonzero over the region (kelp proves it for theta waves with real U, V, W and for solitons; samples are no proof)",
+            w.kind_name()
+        )))
+    }
+}
+
+fn at_fail(span: Span, e: crate::waves::AtError) -> Fail {
+    fail(if e.undecided { Code::ClaimUndecided } else { Code::EvalFailed }, span, e.message)
 }
 
 /// Points per axis of a `plot` range written without `step`.

@@ -5,7 +5,14 @@
 //! exactly in Hirota's form (D_x^4 + 3 D_y^2 - 4 D_x D_t) tau . tau = 0, which for
 //! u = 2 (log tau)_xx is kelp's 3 u_yy + (u_xxx + 6 u u_x - 4 u_t)_x = 0.
 
+use super::ball::{up, Ball, BallSeries, U};
 use super::series::{monomials, Series};
+
+/// Binomial coefficients, exact in binary64 for the degrees kept (every partial product is
+/// an integer below 2^53).
+fn binom(n: u32, k: u32) -> f64 {
+    (0..k).fold(1.0, |acc, i| acc * (n - i) as f64 / (i + 1) as f64)
+}
 use kelp_lang::poly::Poly;
 use num_complex::Complex64 as C64;
 use num_rational::BigRational;
@@ -90,9 +97,36 @@ impl RationalWave {
     }
 
     /// tau's Taylor series at (x, y, t).
+    /// The series as balls: every term of a coefficient is a product of a rounded rational,
+    /// exact binomials and powers (degree roundings), summed over the polynomial's terms.
+    pub fn series_ball(&self, x: f64, y: f64, t: f64) -> BallSeries {
+        let s = self.series(x, y, t);
+        let mut out = BallSeries::zero();
+        let n = self.terms.len() as f64;
+        for (k, &(a, b, c)) in monomials().iter().enumerate() {
+            let mut size = 0.0;
+            let mut deg = 0u32;
+            for (m, coef) in &self.terms {
+                if m[0] < a || m[1] < b || m[2] < c {
+                    continue;
+                }
+                deg = deg.max(m[0] + m[1] + m[2]);
+                size += coef.abs()
+                    * binom(m[0], a)
+                    * binom(m[1], b)
+                    * binom(m[2], c)
+                    * x.abs().powi((m[0] - a) as i32)
+                    * y.abs().powi((m[1] - b) as i32)
+                    * t.abs().powi((m[2] - c) as i32);
+            }
+            let r = (deg as f64 + 8.0 + n) * U * size * 1.01;
+            out.0[k] = Ball::new(s.0[k], up(r));
+        }
+        out
+    }
+
     pub fn series(&self, x: f64, y: f64, t: f64) -> Series {
         let mut s = Series::zero();
-        let binom = |n: u32, k: u32| -> f64 { (0..k).fold(1.0, |acc, i| acc * (n - i) as f64 / (i + 1) as f64) };
         for (k, &(a, b, c)) in monomials().iter().enumerate() {
             let mut v = 0.0;
             for (m, coef) in &self.terms {

@@ -40,8 +40,9 @@ pub struct ResidualScan {
     pub worst_absolute: ResidualAt,
     /// The point with the largest |R| / m.
     pub worst_relative: ResidualAt,
-    /// Largest relative error estimate of tau over the points.
-    pub tau_relative_error: f64,
+    /// The largest bound on | |R| / m - |R exact| / m | over the points (m as computed:
+    /// it defines the quotient); |max_i a_i - max_i b_i| <= max_i |a_i - b_i|.
+    pub bound: f64,
     pub points: usize,
 }
 
@@ -54,7 +55,16 @@ impl ResidualScan {
         if self.points == 0 || here.relative() > self.worst_relative.relative() {
             self.worst_relative = here;
         }
-        self.tau_relative_error = self.tau_relative_error.max(p.tau_relative_error);
+        let b = if here.size > 0.0 {
+            // R's ball over m, and the rounding of |R| and of the quotient.
+            p.residual_error / here.size * (1.0 + 4.0 * f64::EPSILON) + 2.0 * f64::EPSILON * here.relative()
+        } else if p.residual_error > 0.0 {
+            // Every computed term is 0: the quotient is 0 by definition, the exact one unknown.
+            f64::INFINITY
+        } else {
+            0.0
+        };
+        self.bound = self.bound.max(b);
         self.points += 1;
     }
 
@@ -63,10 +73,10 @@ impl ResidualScan {
         self.worst_relative.relative()
     }
 
-    /// Its error bound: the terms are computed from tau to its relative error (or rounding),
-    /// amplified by the derivatives; the same factor as `value` uses for u.
+    /// Its error bound: R's ball radius over m at each point (ball arithmetic from tau's
+    /// coefficients, `ball.rs`), the largest over the points.
     pub fn error_bound(&self) -> f64 {
-        1e3 * self.tau_relative_error.max(f64::EPSILON)
+        self.bound
     }
 
     /// Both scales, stated: the hover text, the claim message and the JSON report's reason.
@@ -105,7 +115,8 @@ mod tests {
     fn point(residual: f64, scale: f64, size: f64) -> WavePoint {
         WavePoint {
             kp: KpPoint { u: C64::new(0.0, 0.0), residual: C64::new(residual, 0.0), scale, size },
-            tau_relative_error: 0.0,
+            u_error: 0.0,
+            residual_error: residual * 1e-10,
         }
     }
 
@@ -120,6 +131,8 @@ mod tests {
         assert_eq!(scan.value(), 1e-3);
         assert_eq!(scan.worst_relative.at, (1.0, 0.0, 0.0));
         assert_eq!(scan.worst_absolute.absolute, 1e-3);
+        // The bound is the largest radius over m: 1e-13 at the second point (arithmetic).
+        assert!((scan.error_bound() - 1e-13).abs() < 1e-18, "{}", scan.error_bound());
         let why = scan.describe();
         assert!(why.contains("|R| / m = 1.00e-3") && why.contains("over 2 points"), "{why}");
     }

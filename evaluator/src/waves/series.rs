@@ -28,7 +28,7 @@ pub fn monomials() -> &'static [(u32, u32, u32)] {
 }
 
 /// Index of the product monomial, or None when it is truncated away.
-fn product_table() -> &'static Vec<Vec<Option<usize>>> {
+pub(crate) fn product_table() -> &'static Vec<Vec<Option<usize>>> {
     static T: OnceLock<Vec<Vec<Option<usize>>>> = OnceLock::new();
     T.get_or_init(|| {
         let m = monomials();

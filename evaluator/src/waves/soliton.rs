@@ -4,7 +4,8 @@
 //! full-rank k x n matrix A. The wave is regular for all (x, y, t) exactly when every maximal
 //! minor Delta_I(A) >= 0. Evaluated as a log-sum-exp, so far-field values do not overflow.
 
-use super::series::Series;
+use super::ball::{up, Ball, BallSeries, U};
+use super::series::{fact, monomials, Series};
 use crate::num::Num;
 use num_complex::Complex64 as C64;
 use num_rational::BigRational;
@@ -27,6 +28,8 @@ pub struct Soliton {
     pub minors: Vec<Minor>,
     /// (sum of kappa, of kappa^2, of kappa^3, sign, log |coefficient|) of each nonzero term.
     terms: Vec<(f64, f64, f64, f64, f64)>,
+    /// A bound on each term's coefficient's relative rounding (minor times Vandermonde).
+    coef_rel: Vec<f64>,
     /// Per term, the Taylor coefficients of exp(s1 x + s2 y + s3 t) (point-independent).
     expansions: Vec<Series>,
 }
@@ -128,6 +131,7 @@ impl Soliton {
         let exact = a.iter().flatten().all(Num::is_exact);
         let mut minors = vec![];
         let mut terms = vec![];
+        let mut coef_rel = vec![];
         for cols in subsets(n, k) {
             crate::limits::checkpoint();
             // Column cols[j] of the sorted kappa is column order[cols[j]] of A as written.
@@ -162,6 +166,19 @@ impl Soliton {
                 let s2: f64 = cols.iter().map(|&c| sorted[c].powi(2)).sum();
                 let s3: f64 = cols.iter().map(|&c| sorted[c].powi(3)).sum();
                 terms.push((s1, s2, s3, coef.signum(), coef.abs().ln()));
+                // Exact minors are rounded once (charged 2 u); a float minor by elimination carries
+                // Wilkinson's bound with growth factor 2^(k-1): 2^k k^2 u prod |rows| (Hadamard).
+                let det_rel = if exact {
+                    2.0 * U
+                } else {
+                    let rows: f64 = a
+                        .iter()
+                        .map(|r| cols.iter().map(|&c| r[order[c]].to_real().unwrap().powi(2)).sum::<f64>().sqrt())
+                        .product();
+                    2f64.powi(k as i32) * (k * k) as f64 * U * rows / d.abs()
+                };
+                let pairs = (k * (k - 1) / 2) as f64;
+                coef_rel.push(up(det_rel + (2.0 * pairs + 2.0) * U));
             }
             minors.push(Minor { columns: cols, value });
         }
@@ -172,7 +189,7 @@ impl Soliton {
             .iter()
             .map(|&(s1, s2, s3, _, _)| Series::exponential(C64::new(s1, 0.0), C64::new(s2, 0.0), C64::new(s3, 0.0)))
             .collect();
-        Ok(Soliton { kappa: sorted, order, k, minors, terms, expansions })
+        Ok(Soliton { kappa: sorted, order, k, minors, terms, coef_rel, expansions })
     }
 
     /// The first negative maximal minor, if any (regular exactly when there is none).
@@ -203,6 +220,50 @@ impl Soliton {
             }
         }
         s
+    }
+
+    /// tau's series as balls holding the exact series of tau exp(-top), top the computed
+    /// largest exponent (a common factor, invisible to log tau's derivatives): each term's
+    /// exponent carries the rounding of its coefficient's logarithm and of the kappa sums,
+    /// each expansion the rounding of its powers.
+    pub fn series_ball(&self, x: f64, y: f64, t: f64) -> BallSeries {
+        let k = self.k as f64;
+        let sum_pow = |p: i32| self.kappa.iter().map(|v| v.abs().powi(p)).sum::<f64>();
+        let ds = [k * U * sum_pow(1), (k + 1.0) * U * sum_pow(2), (k + 2.0) * U * sum_pow(3)];
+        let logs: Vec<f64> = self.terms.iter().map(|&(s1, s2, s3, _, lc)| lc + s1 * x + s2 * y + s3 * t).collect();
+        let top = logs.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+        let mut out = BallSeries::zero();
+        for (i, (&(s1, s2, s3, sign, lc), l)) in self.terms.iter().zip(&logs).enumerate() {
+            let parts = lc.abs() + (s1 * x).abs() + (s2 * y).abs() + (s3 * t).abs();
+            let dl = self.coef_rel[i] * 1.01
+                + U * lc.abs()
+                + ds[0] * x.abs()
+                + ds[1] * y.abs()
+                + ds[2] * t.abs()
+                + 4.0 * U * parts
+                + U * (l - top).abs();
+            let w = (l - top).exp();
+            if w < 1e-300 {
+                // Below the largest term by 690 e-folds: charged as its whole size.
+                for (b, e) in out.0.iter_mut().zip(&self.expansions[i].0) {
+                    b.r = up(b.r + 2e-300 * (e.norm() + 1.0));
+                }
+                continue;
+            }
+            let rho = up((dl + 2.0 * U).exp_m1() * 1.01);
+            let wb = Ball::new(C64::new(sign * w, 0.0), w * rho);
+            let (dp, dq, dr) = (ds[0], ds[1], ds[2]);
+            for (kk, &(a, b, c)) in monomials().iter().enumerate() {
+                let e = self.expansions[i].0[kk];
+                let f = fact(a) * fact(b) * fact(c);
+                let hi =
+                    (s1.abs() + dp).powi(a as i32) * (s2.abs() + dq).powi(b as i32) * (s3.abs() + dr).powi(c as i32);
+                let lo = s1.abs().powi(a as i32) * s2.abs().powi(b as i32) * s3.abs().powi(c as i32);
+                let re = (hi - lo) / f * (1.0 + 4.0 * U) + (a + b + c + 4) as f64 * U * e.norm();
+                out.0[kk] = out.0[kk].add(wb.mul(Ball::new(e, up(re))));
+            }
+        }
+        out
     }
 
     /// tau, tau_x, tau_xx at (x, y, t) (scaled alike), for u alone.

@@ -7,6 +7,8 @@
 //! file, derived there). Given U, V, W this is an overdetermined linear system in (c, d):
 //! solved by least squares, its relative residual reported as a self-check.
 
+use super::ball::{up, Ball, BallSeries, U};
+use super::moments::{MomentCache, Moments};
 use super::series::{fact, monomials, Series};
 use crate::theta::{Characteristic, ThetaContext, ThetaError};
 use nalgebra::DMatrix;
@@ -20,6 +22,8 @@ pub struct ThetaWave {
     pub shift: Vec<C64>,
     pub c: C64,
     pub accuracy: f64,
+    /// Moduli moments for the bounds (see `moments.rs`); `Default::default()`.
+    pub moments: MomentCache,
 }
 
 impl std::fmt::Debug for ThetaWave {
@@ -59,6 +63,71 @@ impl ThetaWave {
         }
         let rel = err / s.0[0].norm().max(1e-300);
         Ok((s, rel))
+    }
+
+    /// A bound on |z - z exact| (Euclidean) for the phase as computed: each coordinate is
+    /// three products by reals and three sums.
+    fn phase_error(&self, x: f64, y: f64, t: f64) -> f64 {
+        let e2: f64 = (0..self.u.len())
+            .map(|k| {
+                let s = self.shift[k].norm()
+                    + self.u[k].norm() * x.abs()
+                    + self.v[k].norm() * y.abs()
+                    + self.w[k].norm() * t.abs();
+                (4.0 * U * s).powi(2)
+            })
+            .sum();
+        up(e2.sqrt())
+    }
+
+    fn moments_at(&self, z: &[C64], log_factor: f64) -> Result<Moments, ThetaError> {
+        let imz: Vec<f64> = z.iter().map(|v| v.im).collect();
+        self.moments.at(self.ctx.tau(), &imz, log_factor)
+    }
+
+    /// theta's Taylor series at (x, y, t) as balls that hold the exact coefficients of the
+    /// wave at the exact point: the engine's bound (truncation and rounding) per monomial,
+    /// the rounding of the scale, and the rounding of the phase through the moments.
+    pub fn series_ball(&self, x: f64, y: f64, t: f64) -> Result<BallSeries, ThetaError> {
+        let z = self.phase(x, y, t);
+        let monos: Vec<Vec<u32>> = monomials().iter().map(|&(a, b, c)| vec![a, b, c]).collect();
+        let dirs = [self.u.clone(), self.v.clone(), self.w.clone()];
+        let (vals, _) = self.ctx.sums(&z, None, &dirs, &monos, self.accuracy)?;
+        let f0 = vals[0].log_factor;
+        let p = self.moments_at(&z, f0)?;
+        let dz = self.phase_error(x, y, t);
+        let norm = |d: &[C64]| d.iter().map(|v| v.norm_sqr()).sum::<f64>().sqrt();
+        let (nu, nv, nw) = (norm(&self.u), norm(&self.v), norm(&self.w));
+        let mut s = BallSeries::zero();
+        for (k, (&(a, b, c), v)) in monomials().iter().zip(&vals).enumerate() {
+            let diff = v.log_factor - f0;
+            let scale = diff.exp() / (fact(a) * fact(b) * fact(c));
+            let value = v.value * scale;
+            let moved = dz * p[(a + b + c + 1) as usize] * nu.powi(a as i32) * nv.powi(b as i32) * nw.powi(c as i32)
+                / (fact(a) * fact(b) * fact(c));
+            let r = v.error * scale * (1.0 + 8.0 * U) + value.norm() * (8.0 + 2.0 * diff.abs()) * U + moved * 1.01;
+            s.0[k] = Ball::new(value, up(r));
+        }
+        Ok(s)
+    }
+
+    /// theta at (x, y, t) (its factor divided out) as a ball, and P_1 (the gradient bound:
+    /// |d theta / ds| <= |dz/ds| P_1 on the bounded part while Im z is that of the point).
+    pub fn tau_ball(&self, x: f64, y: f64, t: f64) -> Result<(Ball, f64), ThetaError> {
+        let z = self.phase(x, y, t);
+        let (vals, _) = self.ctx.sums(&z, None, &[], &[vec![]], self.accuracy)?;
+        let p = self.moments_at(&z, vals[0].log_factor)?;
+        let r = vals[0].error * (1.0 + 8.0 * U) + self.phase_error(x, y, t) * p[1] * 1.01;
+        Ok((Ball::new(vals[0].value, up(r)), p[1]))
+    }
+
+    /// Whether Im z is the same at every (x, y, t) (real U, V, W) and theta real there
+    /// (tau purely imaginary, U, V, W, D real).
+    pub fn real_directions(&self) -> bool {
+        self.u.iter().chain(&self.v).chain(&self.w).all(|v| v.im == 0.0)
+    }
+    pub fn real_theta(&self) -> bool {
+        self.real_directions() && self.shift.iter().all(|v| v.im == 0.0) && self.ctx.tau().iter().all(|v| v.re == 0.0)
     }
 
     /// theta, its first and second derivatives along U at (x, y, t) (exponential factor
