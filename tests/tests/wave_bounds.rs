@@ -7,28 +7,16 @@
 
 use kelp_evaluator::waves::residual::ResidualScan;
 use kelp_evaluator::waves::Wave;
-use kelp_evaluator::{evaluate, Mode, Value};
+use kelp_evaluator::Value;
 use num_complex::Complex64 as C64;
 use serde_json::Value as J;
-use std::sync::Arc;
 
 fn doc() -> J {
     serde_json::from_str(include_str!("../fixtures/wave_bound_refs.json")).unwrap()
 }
 
-fn eval(src: &str) -> kelp_evaluator::Evaluation {
-    let c = kelp_lang::check(src);
-    assert!(!c.has_errors(), "{src}: {:?}", c.diagnostics);
-    evaluate(&c, src, &Mode::Check)
-}
-
-fn wave(e: &kelp_evaluator::Evaluation, name: &str) -> Arc<Wave> {
-    match &e.values.iter().find(|v| v.name == name).unwrap_or_else(|| panic!("{name}: {:?}", e.diagnostics)).value.value
-    {
-        Value::Wave(w) => w.clone(),
-        other => panic!("{name} is {other}"),
-    }
-}
+mod fixture;
+use fixture::{eval, wave};
 
 fn s(v: &J) -> &str {
     v.as_str().unwrap()
