@@ -159,8 +159,11 @@ impl Num {
             Num::Exact(q) => {
                 let f = to_f64(q);
                 match BigRational::from_float(f) {
-                    // The exact difference, rounded up.
-                    Some(back) => to_f64(&(back - q).abs()) * (1.0 + 4.0 * UNIT_ROUNDOFF),
+                    Some(back) if back == *q => 0.0,
+                    // The exact difference, rounded up; the smallest subnormal on top covers
+                    // a difference below the subnormal spacing, which the conversion of the
+                    // difference itself would round down, even to 0 (`1e-320`).
+                    Some(back) => to_f64(&(back - q).abs()) * (1.0 + 4.0 * UNIT_ROUNDOFF) + f64::from_bits(1),
                     None => f64::INFINITY,
                 }
             }
@@ -224,6 +227,23 @@ impl fmt::Display for Num {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn subnormal_literals_carry_their_conversion_error() {
+        // 1e-320 and the others are not binary fractions; the reference is the exact
+        // difference between the literal and the rational value of its float (common
+        // practice, no source). Below the subnormal spacing it used to round to 0.
+        for text in ["1e-320", "3e-324", "1e-310", "0.1", "1e-300"] {
+            let q = kelp_lang::number::parse_exact(text).unwrap();
+            let f = to_f64(&q);
+            let exact = (BigRational::from_float(f).unwrap() - &q).abs();
+            let stated = Num::Exact(q).conversion_error();
+            assert!(stated > 0.0, "{text}");
+            let stated_q = BigRational::from_float(stated).unwrap();
+            assert!(stated_q >= exact, "{text}: stated {stated:e} below the exact difference");
+        }
+        assert_eq!(Num::Exact(BigRational::new(1.into(), 4.into())).conversion_error(), 0.0);
+    }
 
     #[test]
     fn exact_arithmetic_stays_exact() {

@@ -13,6 +13,15 @@ use serde_json::Value;
 mod fixture;
 use fixture::{cx, floats};
 
+/// A fixture case's matrix, argument and characteristic.
+fn inputs(case: &Value) -> (DMatrix<C64>, Vec<C64>, Characteristic) {
+    let rows = case["tau"].as_array().unwrap();
+    let g = rows.len();
+    let tau = DMatrix::from_fn(g, g, |i, j| cx(&rows[i][j]));
+    let z: Vec<C64> = case["z"].as_array().unwrap().iter().map(cx).collect();
+    (tau, z, Characteristic { a: floats(&case["a"]), b: floats(&case["b"]) })
+}
+
 #[test]
 fn every_theta_bound_holds_on_hostile_inputs() {
     let doc: Value = serde_json::from_str(include_str!("../fixtures/theta_hostile.json")).unwrap();
@@ -21,11 +30,8 @@ fn every_theta_bound_holds_on_hostile_inputs() {
     let mut worst: std::collections::BTreeMap<String, f64> = Default::default();
     let mut refused = 0;
     for (k, case) in cases.iter().enumerate() {
-        let rows = case["tau"].as_array().unwrap();
-        let g = rows.len();
-        let tau = DMatrix::from_fn(g, g, |i, j| cx(&rows[i][j]));
-        let z: Vec<C64> = case["z"].as_array().unwrap().iter().map(cx).collect();
-        let ch = Characteristic { a: floats(&case["a"]), b: floats(&case["b"]) };
+        let (tau, z, ch) = inputs(case);
+        let g = tau.nrows();
         let want = cx(&case["value"]);
         let log_scale = case["log_scale"].as_f64().unwrap();
         let family = case["family"].as_str().unwrap().to_string();
@@ -136,11 +142,7 @@ fn first_derivative_bounds_hold_on_hostile_inputs() {
     assert!(cases.len() >= 30, "{}", cases.len());
     let mut worst = 0.0f64;
     for (k, case) in cases.iter().enumerate() {
-        let rows = case["tau"].as_array().unwrap();
-        let g = rows.len();
-        let tau = DMatrix::from_fn(g, g, |i, j| cx(&rows[i][j]));
-        let z: Vec<C64> = case["z"].as_array().unwrap().iter().map(cx).collect();
-        let ch = Characteristic { a: floats(&case["a"]), b: floats(&case["b"]) };
+        let (tau, z, ch) = inputs(case);
         let along: Vec<C64> = case["along"].as_array().unwrap().iter().map(cx).collect();
         let want = cx(&case["value"]);
         let ctx = ThetaContext::new(&tau, 1e-15).unwrap();

@@ -468,18 +468,22 @@ impl ThetaContext {
         // moduli come from the enumeration), and the phase of
         // pi i a'^T tau a' + 2 pi i a'^T (z + b).
         let phase = |v: C64| C64::new(0.0, v.im).exp();
-        let mut pows = Vec::with_capacity(zs.len());
+        let (pow_off, pow_len) = sum::pow_offsets(&tables.half);
+        let mut pows = vec![C64::new(0.0, 0.0); pow_len * zs.len()];
         let mut kfacs = Vec::with_capacity(zs.len());
         // Absolute rounding (units of u) of the reduced phases and of the common phase.
         let mut phase_err = vec![0.0f64; g];
         let mut common_err = 0.0f64;
         let gf = g as f64;
-        for z in zs {
-            let v_abs: Vec<f64> = (0..g)
-                .map(|i| {
-                    (0..g).map(|j| self.tau[(i, j)].norm() * a2[j].abs()).sum::<f64>() + z[i].norm() + ch.b[i].abs()
-                })
-                .collect();
+        // Per-z scratch (|v_i|, z + b, v and L), reused across the batch.
+        let mut v_abs = vec![0.0f64; g];
+        let mut zb = vec![C64::new(0.0, 0.0); g];
+        let mut vv = vec![C64::new(0.0, 0.0); g];
+        for (zi, z) in zs.iter().enumerate() {
+            for i in 0..g {
+                v_abs[i] =
+                    (0..g).map(|j| self.tau[(i, j)].norm() * a2[j].abs()).sum::<f64>() + z[i].norm() + ch.b[i].abs();
+            }
             for j in 0..g {
                 let e = (gf + 4.0) * 2.0 * PI * (0..g).map(|i| v_abs[i] * uf(i, j).abs()).sum::<f64>();
                 phase_err[j] = phase_err[j].max(e);
@@ -492,29 +496,32 @@ impl ThetaContext {
                 })
                 .sum();
             common_err = common_err.max((2.0 * gf + 4.0) * k_abs);
-        }
-        for z in zs {
-            let zb: Vec<C64> = (0..g).map(|i| z[i] + ch.b[i]).collect();
-            let v: Vec<C64> = (0..g).map(|i| (0..g).map(|j| self.tau[(i, j)] * a2[j]).sum::<C64>() + zb[i]).collect();
-            let l: Vec<C64> = (0..g).map(|j| i2pi * (0..g).map(|i| v[i] * uf(i, j)).sum::<C64>()).collect();
-            let pow: Vec<Vec<C64>> = (0..g)
-                .map(|j| {
-                    let h = tables.half[j];
-                    let (e, einv) = (phase(l[j]), phase(-l[j]));
-                    let mut p = vec![C64::new(1.0, 0.0); (2 * h + 1) as usize];
-                    for k in 1..=h as usize {
-                        p[h as usize + k] = p[h as usize + k - 1] * e;
-                        p[h as usize - k] = p[h as usize - k + 1] * einv;
-                    }
-                    p
-                })
-                .collect();
+            for i in 0..g {
+                zb[i] = z[i] + ch.b[i];
+            }
+            for i in 0..g {
+                vv[i] = (0..g).map(|j| self.tau[(i, j)] * a2[j]).sum::<C64>() + zb[i];
+            }
+            let block = &mut pows[zi * pow_len..(zi + 1) * pow_len];
+            for j in 0..g {
+                let l = i2pi * (0..g).map(|i| vv[i] * uf(i, j)).sum::<C64>();
+                let h = tables.half[j] as usize;
+                // Powers only as far as the enumeration can reach (|n_j| <= need_j), by
+                // repeated products from 1 outwards as before.
+                let reach = (need[j] as usize + 1).min(h);
+                let (e, einv) = (phase(l), phase(-l));
+                let p = &mut block[pow_off[j]..pow_off[j] + 2 * h + 1];
+                p[h] = C64::new(1.0, 0.0);
+                for k in 1..=reach {
+                    p[h + k] = p[h + k - 1] * e;
+                    p[h - k] = p[h - k + 1] * einv;
+                }
+            }
             let mut k_arg = 0.0;
             for i in 0..g {
                 let row: f64 = (0..g).map(|j| self.re[(i, j)] * a2[j]).sum();
                 k_arg += a2[i] * (PI * row + 2.0 * PI * zb[i].re);
             }
-            pows.push(pow);
             kfacs.push(C64::new(0.0, k_arg).exp());
         }
         let rdirs: Vec<Vec<C64>> = dirs
@@ -563,6 +570,8 @@ impl ThetaContext {
             s: &s,
             r2: r_enum * r_enum,
             pow: &pows,
+            pow_off: &pow_off,
+            pow_len,
             k: &kfacs,
             q: (i2pi * self.taur[(0, 0)]).exp(),
             dirs: &rdirs,
@@ -583,10 +592,12 @@ impl ThetaContext {
                 truncation + self.rounding_bound(&sums, &growth, mono)
             })
             .collect();
-        let values = out
-            .acc
-            .iter()
-            .map(|acc| acc.iter().zip(&bounds).map(|(v, &error)| ThetaValue { log_factor, value: *v, error }).collect())
+        let nm = monos.len();
+        let values = (0..zs.len())
+            .map(|b| {
+                let acc = &out.acc[b * nm..(b + 1) * nm];
+                acc.iter().zip(&bounds).map(|(v, &error)| ThetaValue { log_factor, value: *v, error }).collect()
+            })
             .collect();
         Ok((values, SumStats { points: out.points, lines: out.lines, radius, centre: cnorm, moduli: out.abs0 }))
     }

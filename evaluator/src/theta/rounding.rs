@@ -29,7 +29,11 @@
 //!   t(k + 1) = t(k) rho(k), rho(k + 1) = rho(k) q, so k steps out rho carries k (dq + 3)
 //!   and t carries k drho0 + k^2 / 2 (dq + 3) + 3 k, with dq = 12 pi |tau'_00| + 3 and drho0
 //!   the errors of rho's first value (the step table, the cross tables at v = +-1, the
-//!   modulus ratio exp(-g0^2 (2 x0 +- 1)) and one phase power);
+//!   modulus ratio exp(-g0^2 (2 x0 +- 1)) and one phase power); the factors are formed
+//!   once per line, at its start point m: the backward walk begins with t(m) times its
+//!   own first ratio (whose cross part is the conjugate of the forward one, exact, with
+//!   the same bound as the tables at v = -1), so its term k points out of m is k steps
+//!   from t(m) and is charged k like a forward term (`sum::Walker::line`);
 //! * the sum: each line is summed recursively (L - 1 roundings, counted as L + 3 with the
 //!   weight product) and the line sums are added with compensation (2 u of the total,
 //!   bounded by the sum of moduli).
@@ -44,7 +48,8 @@
 //! their rounding is bounded absolutely: |s_i| carries at most d_i = 2 (g + 2) u (|const| +
 //! sum_j |d'_ij| h_j), and prod (|s_i| + d_i)^e_i - prod |s_i|^e_i <= k d (sigma + d)^(k-1)
 //! (mean value theorem; k the total order, d = max d_i, sigma = sum |s_i|) bounds the
-//! weight's error (summed term by term with the term's modulus).
+//! weight's error (summed term by term with the term's modulus, once per total order:
+//! k d sum |t| (sigma + d)^(k-1)).
 //!
 //! Inputs that are themselves uncertain (tau and z out of a computation, norms E and e_z,
 //! see `InputErrors`) move a term's exponent by pi |m^T E m| + 2 pi |m.e_z|, split the same

@@ -76,6 +76,18 @@ pub fn half_widths(yred_inv_diag: &[f64], r: f64) -> Vec<i64> {
     yred_inv_diag.iter().map(|d| (r * (d / PI).sqrt() + 0.5).ceil() as i64).collect()
 }
 
+/// Offsets of each coordinate's phase powers in a z's block of `SumInput::pow`, and the
+/// block's length: coordinate j holds exp(i phi_j)^v for |v| <= half_j at `off[j] + v + half_j`.
+pub fn pow_offsets(half: &[i64]) -> (Vec<usize>, usize) {
+    let mut off = Vec::with_capacity(half.len());
+    let mut total = 0;
+    for &h in half {
+        off.push(total);
+        total += (2 * h + 1) as usize;
+    }
+    (off, total)
+}
+
 /// One pass's inputs, in reduced coordinates. A pass serves a batch of z that share
 /// Im z (so the ellipsoid, the moduli and the derivative weights are shared) and differ
 /// in Re z (so each has its own phases).
@@ -87,8 +99,11 @@ pub struct SumInput<'a> {
     pub s: &'a [f64],
     /// Squared radius of the ellipsoid.
     pub r2: f64,
-    /// Per z: phase powers pow[b][j][v + half_j] = exp(i phi_j)^v.
-    pub pow: &'a [Vec<Vec<C64>>],
+    /// Phase powers, one block of `pow_len` per z laid out by [`pow_offsets`] of the tables'
+    /// half-widths (entries the enumeration cannot reach may be left 0).
+    pub pow: &'a [C64],
+    pub pow_off: &'a [usize],
+    pub pow_len: usize,
     /// Per z: the common phase exp(i k_arg).
     pub k: &'a [C64],
     /// exp(2 pi i tau'_00): the second ratio along a line (phase and modulus).
@@ -107,11 +122,11 @@ pub struct SumInput<'a> {
 }
 
 pub struct SumOutput {
-    /// acc[b][i]: the sum for z number b and monomial i.
-    pub acc: Vec<Vec<C64>>,
+    /// acc[b * nm + i]: the sum for z number b and monomial i (nm monomials).
+    pub acc: Vec<C64>,
     /// Running compensation of `acc` (line sums are added with TwoSum, so the
     /// accumulation over many lines costs no more than one rounding).
-    comp: Vec<Vec<C64>>,
+    comp: Vec<C64>,
     /// Sum of |term| * |weight| per monomial (the same for every z of a pass), as
     /// |re| + |im|, an upper bound of the modulus.
     pub abs: Vec<f64>,
@@ -132,15 +147,17 @@ pub fn run(inp: &SumInput) -> SumOutput {
     let nb = inp.k.len();
     let nm = inp.monos.len();
     let maxe: Vec<u32> = (0..inp.dirs.len()).map(|i| inp.monos.iter().map(|m| m[i]).max().unwrap_or(0)).collect();
+    let max_order = inp.orders.iter().copied().max().unwrap_or(0) as usize;
     let zero = C64::new(0.0, 0.0);
     let mut w = Walker {
         inp,
         n: vec![0; g],
-        prod: vec![vec![zero; nb]; g + 1],
+        part: vec![0.0; g * (g + 1)],
+        prod: vec![zero; nb * (g + 1)],
         lin: vec![vec![zero; g + 1]; inp.dirs.len()],
         out: SumOutput {
-            acc: vec![vec![zero; nm]; nb],
-            comp: vec![vec![zero; nm]; nb],
+            acc: vec![zero; nb * nm],
+            comp: vec![zero; nb * nm],
             abs: vec![0.0; nm],
             abs0: 0.0,
             grow: vec![0.0; nm],
@@ -149,22 +166,26 @@ pub fn run(inp: &SumInput) -> SumOutput {
             lines: 0,
             max_line: 0,
         },
-        line_acc: vec![vec![zero; nm]; nb],
+        line_acc: vec![zero; if inp.dirs.is_empty() { 0 } else { nb * nm }],
         powers: maxe.iter().map(|&e| vec![zero; e as usize + 1]).collect(),
-        spow: vec![0.0; inp.orders.iter().copied().max().unwrap_or(0) as usize + 1],
+        order_err: vec![0.0; max_order + 1],
         weights: vec![zero; nm],
-        t: vec![zero; nb],
-        rho: vec![zero; nb],
+        t: vec![zero; 2 * nb],
+        rho: vec![zero; 2 * nb],
     };
-    w.prod[g].copy_from_slice(inp.k);
+    w.prod[g * nb..].copy_from_slice(inp.k);
     for i in 0..inp.dirs.len() {
         w.lin[i][g] = inp.dir_const[i];
     }
     w.level(g - 1, inp.r2, 0.0);
     let mut out = w.out;
-    for (acc, comp) in out.acc.iter_mut().zip(&out.comp) {
-        for (a, c) in acc.iter_mut().zip(comp) {
-            *a += c;
+    for (a, c) in out.acc.iter_mut().zip(&out.comp) {
+        *a += c;
+    }
+    // The weights' rounding was summed per total order k as sum |t| (sigma + d)^(k-1).
+    for (mi, &k) in inp.orders.iter().enumerate() {
+        if k > 0 {
+            out.weight_err[mi] = k as f64 * inp.dir_err * w.order_err[k as usize];
         }
     }
     out
@@ -190,19 +211,23 @@ fn add_compensated(acc: &mut C64, comp: &mut C64, x: C64) {
 struct Walker<'a> {
     inp: &'a SumInput<'a>,
     n: Vec<i64>,
-    /// prod[j][b]: the product of the phase factors of coordinates >= j (prod[g] = K).
-    prod: Vec<Vec<C64>>,
+    /// part[j * (g + 1) + k] = sum_{i >= k} C_ji (n_i + s_i) (i > j): the centre's partial
+    /// sums, updated when n_k changes so a level's centre costs one addition.
+    part: Vec<f64>,
+    /// prod[j * nb + b]: the product of the phase factors of coordinates >= j (prod[g] = K).
+    prod: Vec<C64>,
     /// lin[i][j]: 2 pi i m.d_i restricted to coordinates >= j.
     lin: Vec<Vec<C64>>,
     out: SumOutput,
     powers: Vec<Vec<C64>>,
-    /// Powers of sigma + d along the current point (see `line`).
-    spow: Vec<f64>,
+    /// order_err[k]: sum over terms of |t| (sigma + d)^(k-1).
+    order_err: Vec<f64>,
     weights: Vec<C64>,
+    /// Current term and ratio per z: forward in [..nb], backward in [nb..].
     t: Vec<C64>,
     rho: Vec<C64>,
-    /// Sums along the current line, per z and monomial.
-    line_acc: Vec<Vec<C64>>,
+    /// Sums along the current line, per z and monomial (derivative passes only).
+    line_acc: Vec<C64>,
 }
 
 impl Walker<'_> {
@@ -212,12 +237,10 @@ impl Walker<'_> {
         let inp = self.inp;
         let c = inp.c;
         let g = c.nrows();
+        let nb = inp.k.len();
         let gj = c[(j, j)];
-        let mut partial = 0.0;
-        for k in j + 1..g {
-            partial += c[(j, k)] * (self.n[k] as f64 + inp.s[k]);
-        }
-        let centre = inp.s[j] + partial / gj;
+        let stride = g + 1;
+        let centre = inp.s[j] + self.part[j * stride + j + 1] / gj;
         let half = r2.max(0.0).sqrt() / gj;
         let h = inp.tables.half[j];
         let lo = ((-centre - half).ceil() as i64).max(-h);
@@ -229,16 +252,22 @@ impl Walker<'_> {
             self.line(lo, hi, centre, used);
             return;
         }
+        let off = inp.pow_off[j];
         for v in lo..=hi {
             self.n[j] = v;
+            let x = v as f64 + inp.s[j];
+            for i in 0..j {
+                self.part[i * stride + j] = self.part[i * stride + j + 1] + c[(i, j)] * x;
+            }
             let mut shared = inp.tables.diag(j, v);
             for k in j + 1..g {
                 shared *= inp.tables.cross(j, k, v, self.n[k]);
             }
-            let idx = (v + h) as usize;
-            let (below, above) = self.prod.split_at_mut(j + 1);
-            for (b, out) in below[j].iter_mut().enumerate() {
-                *out = above[0][b] * shared * inp.pow[b][j][idx];
+            let idx = off + (v + h) as usize;
+            let (below, above) = self.prod.split_at_mut((j + 1) * nb);
+            let below = &mut below[j * nb..];
+            for b in 0..nb {
+                below[b] = above[b] * shared * inp.pow[b * inp.pow_len + idx];
             }
             for i in 0..inp.dirs.len() {
                 self.lin[i][j] = self.lin[i][j + 1] + inp.dirs[i][j] * v as f64;
@@ -248,9 +277,14 @@ impl Walker<'_> {
         }
     }
 
-    /// The innermost line n_0 = lo..=hi, walked outwards from the point nearest its
-    /// centre in both directions, so that the recurrences' rounding (which grows with the
-    /// number of steps) is smallest on the largest terms.
+    /// The innermost line n_0 = lo..=hi. Lines longer than 6 are walked outwards from the
+    /// point nearest their centre in both directions, so that the recurrences' rounding
+    /// (which grows with the number of steps) is smallest on the largest terms; shorter
+    /// ones (most of them in skewed lattices) from one end. The factors are formed once,
+    /// at the start point m: forward t(k + 1) = t(k) rho(k), rho(k + 1) = rho(k) q; the
+    /// backward walk starts from t(m) times its own first ratio (the ratio of consecutive
+    /// ratios is exp(2 pi i tau'_00) either way), so its term k points out of m is k
+    /// recurrence steps from t(m) and is charged as such.
     fn line(&mut self, lo: i64, hi: i64, centre: f64, used: f64) {
         let len = (hi - lo + 1) as usize;
         self.out.points += len;
@@ -259,154 +293,207 @@ impl Walker<'_> {
             crate::limits::checkpoint();
         }
         self.out.max_line = self.out.max_line.max(len);
-        // Short lines (most of them in skewed lattices) are walked from one end: splitting
-        // them would double the work per line for a few steps' worth of rounding.
         let mid = if len > 6 { ((-centre).round() as i64).clamp(lo, hi) } else { lo };
-        self.segment(mid, (hi - mid + 1) as usize, 1, centre, used);
-        if mid > lo {
-            self.segment(mid - 1, (mid - lo) as usize, -1, centre, used);
-        }
-    }
-
-    /// `len` points from n_0 = `start` in direction `dir` (+1 or -1): factors at the start,
-    /// then the recurrence t(k + 1) = t(k) rho(k), rho(k + 1) = rho(k) q (the ratio of
-    /// consecutive ratios is exp(2 pi i tau'_00) either way).
-    fn segment(&mut self, start: i64, len: usize, dir: i64, centre: f64, used: f64) {
+        let (nf, nbk) = ((hi - mid + 1) as usize, (mid - lo) as usize);
         let inp = self.inp;
         let tb = inp.tables;
         let g = inp.c.nrows();
+        let nb = inp.k.len();
         let h0 = tb.half[0];
         let g0 = inp.c[(0, 0)];
-        let x0 = start as f64 + centre;
-        let dirf = dir as f64;
-        let mut first = tb.diag(0, start) * (-(used + g0 * g0 * x0 * x0)).exp();
-        // Lambda = prod_k exp(+-2 pi i X'_0k n_k) times the diagonal step: the n-dependent part of the ratio.
-        let mut lambda = if len > 1 {
-            if dir > 0 {
-                tb.step[(start + h0) as usize]
-            } else {
-                tb.step[(start - 1 + h0) as usize].conj()
+        let x0 = mid as f64 + centre;
+        let mut first = tb.diag(0, mid) * (-(used + g0 * g0 * x0 * x0)).exp();
+        // P = prod_k exp(2 pi i X'_0k n_k), the n-dependent part of the forward ratio; the
+        // backward ratio's is its conjugate, which carries the same error bound as the
+        // product of the tables at v = -1 it stands for (conjugation is exact).
+        let mut p = C64::new(1.0, 0.0);
+        for k in 1..g {
+            first *= tb.cross(0, k, mid, self.n[k]);
+            if len > 1 {
+                p *= tb.cross(0, k, 1, self.n[k]);
             }
+        }
+        // |w|^2 changes by g0^2 (2 x0 +- 1) from one point to the next; within the ellipsoid
+        // that ratio lies in [e^-R^2, e^R^2], so it is only formed when a next point exists.
+        let lambda_f = if nf > 1 {
+            tb.step[(mid + h0) as usize] * p * (-g0 * g0 * (2.0 * x0 + 1.0)).exp()
         } else {
             C64::new(0.0, 0.0)
         };
-        for k in 1..g {
-            first *= tb.cross(0, k, start, self.n[k]);
-            lambda *= tb.cross(0, k, dir, self.n[k]);
+        let lambda_b = if nbk > 0 {
+            (tb.step[(mid - 1 + h0) as usize] * p).conj() * (-g0 * g0 * (1.0 - 2.0 * x0)).exp()
+        } else {
+            C64::new(0.0, 0.0)
+        };
+        let (off0, plen) = (inp.pow_off[0], inp.pow_len);
+        let imid = off0 + (mid + h0) as usize;
+        for b in 0..nb {
+            let pw = &inp.pow[b * plen..];
+            let t = self.prod[nb + b] * pw[imid] * first;
+            self.t[b] = t;
+            self.rho[b] = lambda_f * pw[off0 + (h0 + 1) as usize];
+            if nbk > 0 {
+                let rb = lambda_b * pw[off0 + (h0 - 1) as usize];
+                self.t[nb + b] = t * rb;
+                self.rho[nb + b] = rb * inp.q;
+            }
         }
-        // |w|^2 changes by g0^2 (2 dir x0 + 1) from one point to the next; within the
-        // ellipsoid that ratio lies in [e^-R^2, e^R^2], so it is only formed when a next point exists.
-        lambda *= if len > 1 { (-g0 * g0 * (2.0 * dirf * x0 + 1.0)).exp() } else { 0.0 };
-        let (istart, one) = ((start + h0) as usize, (h0 + dir) as usize);
-        for b in 0..self.t.len() {
-            self.t[b] = self.prod[1][b] * inp.pow[b][0][istart] * first;
-            self.rho[b] = lambda * inp.pow[b][0][one];
-        }
-        let q = inp.q;
         if inp.dirs.is_empty() {
-            let [c1, c2, c3] = inp.growth;
-            let (mut abs, mut grow) = (0.0, 0.0);
-            for (b, (acc, comp)) in self.out.acc.iter_mut().zip(self.out.comp.iter_mut()).enumerate() {
-                let (mut t, mut rho) = (self.t[b], self.rho[b]);
-                let mut sum = C64::new(0.0, 0.0);
-                if b == 0 {
-                    // Moments sum m k^j of the moduli along the line; |w|^2 = used +
-                    // g0^2 (x0 + k)^2 is expanded once per line.
-                    let (mut s0, mut s1, mut s2, mut kf) = (0.0, 0.0, 0.0, 0.0);
-                    for _ in 0..len {
-                        sum += t;
-                        let m = t.re.abs() + t.im.abs();
-                        let mk = m * kf;
-                        s0 += m;
-                        s1 += mk;
-                        s2 += mk * kf;
-                        kf += 1.0;
-                        t *= rho;
-                        rho *= q;
-                    }
-                    abs += s0;
-                    let w2 = used * s0 + g0 * g0 * (x0 * x0 * s0 + 2.0 * dirf * x0 * s1 + s2);
-                    grow += c1 * s1 + c2 * s2 + c3 * w2.max(0.0);
-                } else {
-                    for _ in 0..len {
-                        sum += t;
-                        t *= rho;
-                        rho *= q;
-                    }
-                }
-                for (a, c) in acc.iter_mut().zip(comp.iter_mut()) {
-                    add_compensated(a, c, sum);
-                }
+            self.plain_line(nf, nbk, x0, used);
+        } else {
+            self.line_acc.iter_mut().for_each(|a| *a = C64::new(0.0, 0.0));
+            for step in 0..nf {
+                self.deriv_step(mid + step as i64, step as f64, x0 + step as f64, used, 0);
             }
-            for a in self.out.abs.iter_mut() {
-                *a += abs;
+            for step in 1..=nbk {
+                self.deriv_step(mid - step as i64, step as f64, x0 - step as f64, used, nb);
             }
-            self.out.abs0 += abs;
-            for a in self.out.grow.iter_mut() {
-                *a += grow;
+            for ((a, c), x) in self.out.acc.iter_mut().zip(self.out.comp.iter_mut()).zip(&self.line_acc) {
+                add_compensated(a, c, *x);
             }
-            return;
         }
-        for row in self.line_acc.iter_mut() {
-            row.iter_mut().for_each(|a| *a = C64::new(0.0, 0.0));
-        }
-        for step in 0..len {
-            let v = start + dir * step as i64;
-            let mut sigma = 0.0;
-            for i in 0..inp.dirs.len() {
-                let s = self.lin[i][1] + inp.dirs[i][0] * v as f64;
-                let p = &mut self.powers[i];
-                let mut cur = C64::new(1.0, 0.0);
-                for slot in p.iter_mut() {
-                    *slot = cur;
-                    cur *= s;
+    }
+
+    /// A line without derivative weights: `nf` points forward from the start m (steps
+    /// 0..nf), `nbk` backward (steps 1..=nbk), one compensated addition per z.
+    fn plain_line(&mut self, nf: usize, nbk: usize, x0: f64, used: f64) {
+        let inp = self.inp;
+        let nb = inp.k.len();
+        let nm = inp.monos.len();
+        let q = inp.q;
+        let g0 = inp.c[(0, 0)];
+        let [c1, c2, c3] = inp.growth;
+        let mut abs = 0.0;
+        let mut grow = 0.0;
+        for b in 0..nb {
+            let mut sum = C64::new(0.0, 0.0);
+            let (mut t, mut rho) = (self.t[b], self.rho[b]);
+            if b == 0 {
+                // Moments sum m k^j of the moduli per direction; |w|^2 = used + g0^2 (x0 +- k)^2
+                // is expanded once per line.
+                let (mut s0, mut s1f, mut s2) = (0.0, 0.0, 0.0);
+                walk_moments(nf, (t, rho), q, 0.0, &mut sum, &mut s0, &mut s1f, &mut s2);
+                let mut s1b = 0.0;
+                walk_moments(nbk, (self.t[nb], self.rho[nb]), q, 1.0, &mut sum, &mut s0, &mut s1b, &mut s2);
+                abs = s0;
+                let w2 = used * s0 + g0 * g0 * (x0 * x0 * s0 + 2.0 * x0 * (s1f - s1b) + s2);
+                grow = c1 * (s1f + s1b) + c2 * s2 + c3 * w2.max(0.0);
+            } else {
+                for _ in 0..nf {
+                    sum += t;
+                    t *= rho;
+                    rho *= q;
                 }
-                sigma += s.re.abs() + s.im.abs();
+                let (mut t, mut rho) = (self.t[nb + b], self.rho[nb + b]);
+                for _ in 0..nbk {
+                    sum += t;
+                    t *= rho;
+                    rho *= q;
+                }
             }
-            // Powers of sigma + d (sigma = sum |s_i|, d the largest rounding of an s_i) for
-            // the weights' error: k d (sigma + d)^(k-1) for a weight of total order k.
-            let mut pw = 1.0;
-            for slot in self.spow.iter_mut() {
-                *slot = pw;
-                pw *= sigma + inp.dir_err;
+            let row = b * nm..(b + 1) * nm;
+            for (a, c) in self.out.acc[row.clone()].iter_mut().zip(self.out.comp[row].iter_mut()) {
+                add_compensated(a, c, sum);
             }
-            let tabs = self.t[0].re.abs() + self.t[0].im.abs();
-            let kf = step as f64;
-            self.out.abs0 += tabs;
-            let wk = g0 * (x0 + dirf * kf);
-            let [c1, c2, c3] = inp.growth;
-            let tgrow = tabs * (kf * (c1 + c2 * kf) + c3 * (used + wk * wk));
-            for (mi, mo) in inp.monos.iter().enumerate() {
+        }
+        for a in self.out.abs.iter_mut() {
+            *a += abs;
+        }
+        self.out.abs0 += abs;
+        for a in self.out.grow.iter_mut() {
+            *a += grow;
+        }
+    }
+
+    /// One point of a line with derivative weights: n_0 = `v`, `kf` recurrence steps from
+    /// the line's start, x = n_0 + centre; terms and ratios at `t[side..]`, `rho[side..]`.
+    fn deriv_step(&mut self, v: i64, kf: f64, x: f64, used: f64, side: usize) {
+        let inp = self.inp;
+        let nb = inp.k.len();
+        let nm = inp.monos.len();
+        let mut sigma = 0.0;
+        for i in 0..inp.dirs.len() {
+            let s = self.lin[i][1] + inp.dirs[i][0] * v as f64;
+            let p = &mut self.powers[i];
+            let mut cur = C64::new(1.0, 0.0);
+            for slot in p.iter_mut() {
+                *slot = cur;
+                cur *= s;
+            }
+            sigma += s.re.abs() + s.im.abs();
+        }
+        let t0 = self.t[side];
+        let tabs = t0.re.abs() + t0.im.abs();
+        // Powers of sigma + d (sigma = sum |s_i|, d the largest rounding of an s_i) for
+        // the weights' error: k d (sigma + d)^(k-1) for a weight of total order k, summed
+        // per order with the term's modulus (`run` multiplies by k d).
+        let mut pw = tabs;
+        for e in self.order_err.iter_mut().skip(1) {
+            *e += pw;
+            pw *= sigma + inp.dir_err;
+        }
+        self.out.abs0 += tabs;
+        let wk = inp.c[(0, 0)] * x;
+        let [c1, c2, c3] = inp.growth;
+        let tgrow = tabs * (kf * (c1 + c2 * kf) + c3 * (used + wk * wk));
+        let (abs, grow) = (&mut self.out.abs[..nm], &mut self.out.grow[..nm]);
+        for (mi, mo) in inp.monos.iter().enumerate() {
+            // One direction (a jet): the weight is a power itself.
+            let wgt = if let [e] = mo[..] {
+                self.powers[0][e as usize]
+            } else {
                 let mut wgt = C64::new(1.0, 0.0);
                 for (i, &e) in mo.iter().enumerate() {
                     if e > 0 {
                         wgt *= self.powers[i][e as usize];
                     }
                 }
-                self.weights[mi] = wgt;
-                // |re| + |im| bounds the modulus within sqrt 2 without a hypot per term
-                // (which was a third of a wave grid's time).
-                let wabs = wgt.re.abs() + wgt.im.abs();
-                self.out.abs[mi] += tabs * wabs;
-                self.out.grow[mi] += tgrow * wabs;
-                let k = inp.orders[mi];
-                if k > 0 {
-                    self.out.weight_err[mi] += tabs * (k as f64 * inp.dir_err) * self.spow[k as usize - 1];
-                }
-            }
-            for b in 0..self.t.len() {
-                let t = self.t[b];
-                for (acc, w) in self.line_acc[b].iter_mut().zip(&self.weights) {
-                    *acc += t * w;
-                }
-                self.t[b] = t * self.rho[b];
-                self.rho[b] *= q;
-            }
+                wgt
+            };
+            self.weights[mi] = wgt;
+            // |re| + |im| bounds the modulus within sqrt 2 without a hypot per term
+            // (which was a third of a wave grid's time).
+            let wabs = wgt.re.abs() + wgt.im.abs();
+            abs[mi] += tabs * wabs;
+            grow[mi] += tgrow * wabs;
         }
-        for ((acc, comp), line) in self.out.acc.iter_mut().zip(self.out.comp.iter_mut()).zip(&self.line_acc) {
-            for ((a, c), x) in acc.iter_mut().zip(comp.iter_mut()).zip(line) {
-                add_compensated(a, c, *x);
+        let q = inp.q;
+        for b in 0..nb {
+            let t = self.t[side + b];
+            for (acc, w) in self.line_acc[b * nm..(b + 1) * nm].iter_mut().zip(&self.weights) {
+                *acc += t * w;
             }
+            self.t[side + b] = t * self.rho[side + b];
+            self.rho[side + b] *= q;
         }
+    }
+}
+
+/// One walk along a line: n terms t, t rho, t rho^2 q, ... (each ratio times q), summed
+/// into `sum`, with the moments of their moduli m: sum m, sum m k, sum m k^2 for
+/// k = k0, k0 + 1, ... (the forward and the backward walk of a line share this).
+#[inline(always)]
+#[allow(clippy::too_many_arguments)]
+fn walk_moments(
+    n: usize,
+    (mut t, mut rho): (C64, C64),
+    q: C64,
+    k0: f64,
+    sum: &mut C64,
+    s0: &mut f64,
+    s1: &mut f64,
+    s2: &mut f64,
+) {
+    let mut kf = k0;
+    for _ in 0..n {
+        *sum += t;
+        let m = t.re.abs() + t.im.abs();
+        let mk = m * kf;
+        *s0 += m;
+        *s1 += mk;
+        *s2 += mk * kf;
+        kf += 1.0;
+        t *= rho;
+        rho *= q;
     }
 }
