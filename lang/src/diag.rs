@@ -22,6 +22,32 @@ impl Severity {
     }
 }
 
+/// A machine-readable repair: replace each span (byte offsets into the same text) by its
+/// string. Editors apply it as a quick fix; the terminal shows its title as `help:`.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Fix {
+    pub title: String,
+    pub edits: Vec<(Span, String)>,
+}
+
+impl Fix {
+    /// A fix that replaces one span.
+    pub fn replace(title: impl Into<String>, span: Span, with: impl Into<String>) -> Self {
+        Fix { title: title.into(), edits: vec![(span, with.into())] }
+    }
+
+    /// The text with the edits applied (edits must not overlap).
+    pub fn apply(&self, text: &str) -> String {
+        let mut edits = self.edits.clone();
+        edits.sort_by_key(|(s, _)| std::cmp::Reverse(s.start));
+        let mut out = text.to_string();
+        for (s, with) in edits {
+            out.replace_range(s.start.min(out.len())..s.end.min(out.len()), &with);
+        }
+        out
+    }
+}
+
 /// A secondary span with its own short message ("first defined here").
 #[derive(Clone, Debug, PartialEq)]
 pub struct Label {
@@ -38,11 +64,13 @@ pub struct Diagnostic {
     pub span: Span,
     pub labels: Vec<Label>,
     pub notes: Vec<String>,
+    /// Repairs a tool may offer (did-you-mean, a missing argument, a wider tolerance).
+    pub fixes: Vec<Fix>,
 }
 
 impl Diagnostic {
     pub fn new(severity: Severity, code: Code, span: Span, message: impl Into<String>) -> Self {
-        Diagnostic { severity, code, message: message.into(), span, labels: vec![], notes: vec![] }
+        Diagnostic { severity, code, message: message.into(), span, labels: vec![], notes: vec![], fixes: vec![] }
     }
     pub fn error(code: Code, span: Span, message: impl Into<String>) -> Self {
         Self::new(Severity::Error, code, span, message)
@@ -59,6 +87,10 @@ impl Diagnostic {
     }
     pub fn with_note(mut self, note: impl Into<String>) -> Self {
         self.notes.push(note.into());
+        self
+    }
+    pub fn with_fix(mut self, fix: Fix) -> Self {
+        self.fixes.push(fix);
         self
     }
     pub fn is_error(&self) -> bool {
@@ -108,6 +140,7 @@ codes! {
     RaggedMatrix = "K303": "matrix rows of different lengths",
     NotAWaveConstructor = "K304": "a `wave` statement whose right side is not a wave constructor",
     WithinWithoutEquality = "K305": "`within` used on a claim that is not an `==` comparison",
+    BadIndex = "K306": "an index outside the vector or matrix, or not a whole number",
 
     UnknownVariable = "K401": "a curve equation uses a variable other than x, y (affine) or x, y, z (projective)",
     NotHomogeneous = "K402": "a projective equation (one using z) whose terms have different degrees",

@@ -1,7 +1,10 @@
 //! The canonical formatter behind `kelp fmt`. One statement per line, canonical spacing,
 //! at most one blank line in a row, comments kept (trailing comments of neighbouring
 //! lines aligned). A statement that does not parse, or that has a comment inside it, is
-//! kept as written. Formatting is idempotent.
+//! kept as written. Formatting is idempotent. Line breaks are written in the style of
+//! the file's first one (`\n`, `\r\n` or a lone `\r`; none: `\n`), as rustfmt's
+//! `newline_style = "Auto"` does, and a leading byte-order mark is kept: the formatter
+//! changes layout, not encoding.
 
 use crate::ast::*;
 use crate::parser::parse;
@@ -59,7 +62,28 @@ pub fn format(src: &str) -> String {
         items.push(Item::Comment(c.text.trim_end().to_string()));
         last_end = c.span.end;
     }
-    render(&items)
+    let out = render(&items);
+    // Text kept verbatim may hold any break; breaks only separate (strings and comments
+    // cannot contain one), so all become the file's style.
+    let out = out.replace("\r\n", "\n").replace('\r', "\n");
+    let out = match first_break(src) {
+        "\n" => out,
+        style => out.replace('\n', style),
+    };
+    if src.starts_with('\u{FEFF}') {
+        format!("\u{FEFF}{out}")
+    } else {
+        out
+    }
+}
+
+/// The first line break of the text (`\n` when it has none).
+fn first_break(src: &str) -> &'static str {
+    match src.find(['\n', '\r']) {
+        Some(i) if src[i..].starts_with("\r\n") => "\r\n",
+        Some(i) if src[i..].starts_with('\r') => "\r",
+        _ => "\n",
+    }
 }
 
 /// Line breaks as the lexer counts them: `\n`, `\r\n` and a lone `\r`.
@@ -206,6 +230,9 @@ pub fn expr_text(e: &Expr) -> String {
             format!("({})", coords.iter().map(expr_text).collect::<Vec<_>>().join(sep))
         }
         ExprKind::Paren(inner) => format!("({})", expr_text(inner)),
+        ExprKind::Index { base, indices } => {
+            format!("{}[{}]", expr_text(base), indices.iter().map(expr_text).collect::<Vec<_>>().join(", "))
+        }
         ExprKind::Unary { op: UnOp::Neg, operand } => format!("-{}", expr_text(operand)),
         ExprKind::Unary { op: UnOp::Not, operand } => format!("not {}", expr_text(operand)),
         ExprKind::Binary { op, lhs, rhs } => {
@@ -224,9 +251,37 @@ pub fn expr_text(e: &Expr) -> String {
 fn is_tight(e: &Expr) -> bool {
     match &e.kind {
         ExprKind::Number(_) | ExprKind::Imag(_) | ExprKind::Name(_) | ExprKind::Call { .. } => true,
+        ExprKind::Index { .. } => true,
         ExprKind::Binary { op: BinOp::Pow, .. } => true,
         ExprKind::Binary { op: BinOp::Mul | BinOp::Div, lhs, rhs } => is_tight(lhs) && is_tight(rhs),
         ExprKind::Unary { op: UnOp::Neg, operand } => is_tight(operand),
         _ => false,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::format;
+
+    // Expected layout: the canonical form `kelp fmt` gives the `\n` file (one statement per
+    // line, a blank line kept); line-ending style of the first break: rustfmt's
+    // `newline_style = "Auto"` (its documentation).
+    #[test]
+    fn line_endings_follow_the_first_break_and_a_bom_is_kept() {
+        let lf = "let  a=1\n\n# note\nlet b = ( 1 +\n 2 # inside\n)\nexpect a==1\n";
+        let want = format(lf);
+        assert!(!want.contains('\r'), "{want:?}");
+        for style in ["\r\n", "\r"] {
+            let src = lf.replace('\n', style);
+            assert_eq!(format(&src), want.replace('\n', style), "{style:?}");
+            assert_eq!(format(&format(&src)), format(&src), "idempotent");
+        }
+        // Mixed: the first break decides, every break follows it.
+        let mixed = "let  a=1\r\nlet b = (1 +\r 2 # inside\n)\n";
+        let out = format(mixed);
+        assert_eq!(out.replace("\r\n", ""), out.replace("\r\n", "").replace(['\r', '\n'], ""));
+        assert_eq!(out.matches("\r\n").count(), 4, "{out:?}");
+        assert_eq!(format(&out), out);
+        assert_eq!(format("\u{FEFF}let  a=1\n"), "\u{FEFF}let a = 1\n");
     }
 }

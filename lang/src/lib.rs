@@ -21,6 +21,6 @@ pub mod span;
 pub mod suggest;
 
 pub use check::{check, Checked, Kind};
-pub use diag::{Code, Diagnostic, Label, Severity};
+pub use diag::{Code, Diagnostic, Fix, Label, Severity};
 pub use parser::{parse, Parsed};
 pub use span::{Encoding, LineCol, LineIndex, Span};

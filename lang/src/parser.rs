@@ -5,7 +5,7 @@
 //! statement is parsed on its own, so one broken statement never hides the others.
 
 use crate::ast::*;
-use crate::diag::{Code, Diagnostic};
+use crate::diag::{Code, Diagnostic, Fix};
 use crate::lexer::{lex, Token};
 use crate::span::Span;
 use chumsky::error::{RichPattern, RichReason};
@@ -201,6 +201,7 @@ fn split_statements<'s>(
     (sig, ends)
 }
 
+const STATEMENT_WORDS: &[&str] = &["set", "curve", "let", "wave", "expect", "sample", "plot"];
 const STATEMENT_KEYWORDS: &str = "`set`, `curve`, `let`, `wave`, `expect`, `sample` or `plot`";
 
 fn parse_group<'t, 's: 't, F, P>(
@@ -228,6 +229,15 @@ where
         );
         if matches!(first.0, Token::Ident(_)) && matches!(group.get(1), Some((Token::Eq, _))) {
             d = d.with_note(format!("to name a value, write `let {} = ...`", first.0.text()));
+        }
+        if let Token::Ident(word) = first.0 {
+            if let Some(k) = crate::suggest::closest(word, STATEMENT_WORDS.iter().copied()) {
+                d = d.with_note(format!("did you mean `{k}`?")).with_fix(Fix::replace(
+                    format!("change to `{k}`"),
+                    sp(first.1),
+                    k,
+                ));
+            }
         }
         diags.push(d);
         return error;
@@ -317,6 +327,10 @@ fn rich_to_diagnostic(e: &Rich<Token, SimpleSpan>, group: &[(Token, SimpleSpan)]
         RichReason::Custom(msg) => msg.to_string(),
     };
     let mut d = Diagnostic::error(Code::UnexpectedToken, span, message);
+    // A claim compares with `==`; a lone `=` there is the usual slip.
+    if group[0].0 == Token::Expect && e.found() == Some(&Token::Eq) {
+        d = d.with_note("a claim compares with `==`").with_fix(Fix::replace("change `=` to `==`", span, "=="));
+    }
     // A common slip: juxtaposition is not multiplication.
     if let Some(i) = group.iter().position(|(_, s)| s.start == e.span().start) {
         if i > 0
@@ -485,7 +499,21 @@ where
             },
         );
 
-        let atom = choice((literal, name_or_call, list, paren)).labelled("expression").boxed();
+        let plain = choice((literal, name_or_call, list, paren)).labelled("expression");
+        // Postfix indexing binds tightest: `M[1, 2]^2` squares the entry.
+        let index = expr
+            .clone()
+            .separated_by(just(Token::Comma))
+            .at_least(1)
+            .collect::<Vec<_>>()
+            .delimited_by(just(Token::LBracket), just(Token::RBracket))
+            .map_with(|ix, e| (ix, sp(e.span())));
+        let atom = plain
+            .foldl(index.repeated(), |base: Expr, (indices, at): (Vec<Expr>, Span)| {
+                let span = base.span.join(at);
+                Expr { kind: ExprKind::Index { base: Box::new(base), indices }, span }
+            })
+            .boxed();
 
         // Exponents may be negated (`2^-1`); `-x^2` is `-(x^2)`; `a^b^c` is `a^(b^c)`.
         let neg_atom =

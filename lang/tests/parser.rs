@@ -32,6 +32,9 @@ fn sx(e: &Expr) -> String {
             )
         }
         ExprKind::Paren(i) => format!("(paren {})", sx(i)),
+        ExprKind::Index { base, indices } => {
+            format!("(index {} {})", sx(base), indices.iter().map(sx).collect::<Vec<_>>().join(" "))
+        }
         ExprKind::Unary { op, operand } => {
             format!("({} {})", if *op == UnOp::Neg { "neg" } else { "not" }, sx(operand))
         }
@@ -150,6 +153,19 @@ fn precedence_and_associativity() {
         ("let a = 1 + 2*3", "(let a (+ 1 (* 2 3)))"),
         ("let a = (1 + 2)*3", "(let a (* (paren (+ 1 2)) 3))"),
         ("let a = 1 < 2 or 2 == 3 and true", "(let a (or (< 1 2) (and (== 2 3) true)))"),
+    ];
+    assert_cases(&cases);
+}
+
+#[test]
+fn indexing_binds_tightest() {
+    // From the grammar in LANGUAGE.md: `index` sits between `power` and `atom`.
+    let cases = [
+        ("let a = M[1, 2]", "(let a (index M 1 2))"),
+        ("let a = -M[1]^2", "(let a (neg (^ (index M 1) 2)))"),
+        ("let a = M[2][1]", "(let a (index (index M 2) 1))"),
+        ("let a = tau(C)[1, 1]", "(let a (index (call tau C) 1 1))"),
+        ("let a = [1, 2][i + 1]", "(let a (index [1 2] (+ 1i 1)))"),
     ];
     assert_cases(&cases);
 }

@@ -145,7 +145,7 @@ pub fn outcome(path: &Path, mode: &Mode, opts: &Options) -> Result<Outcome, Stri
 
     // SARIF: one result per warning or error, and the physical-units cautions as notes
     // (other information diagnostics are hover material).
-    let idx = LineIndex::new(&src);
+    let idx = LineIndex::of_file(&src);
     let sarif = diags
         .iter()
         .filter(|d| shown_always(d))
@@ -177,7 +177,7 @@ pub fn outcome(path: &Path, mode: &Mode, opts: &Options) -> Result<Outcome, Stri
     let mut skipped = 0;
     for e in &eval.expectations {
         let line = idx.line_col(e.span.start, Encoding::Utf16).line + 1;
-        let name = xml(src[e.span.range()].lines().next().unwrap_or(""));
+        let name = xml(src[e.span.range()].split(['\n', '\r']).next().unwrap_or(""));
         let body = match e.passed {
             Some(true) => String::new(),
             Some(false) => {

@@ -89,6 +89,24 @@ fn json_contract() {
 }
 
 #[test]
+fn fixes_in_json_and_on_the_terminal() {
+    let p = temp_file("fix.kelp", "let depth = 2\nexpect depth = 2\n");
+    let (_, out, _) = kelp(&["check", "--format", "json", p.to_str().unwrap()]);
+    let j: serde_json::Value = serde_json::from_str(&out).unwrap();
+    let d = &j["diagnostics"][0];
+    assert_eq!(d["code"], "K102");
+    let edit = &d["fixes"][0]["edits"][0];
+    assert_eq!(edit["text"], "==");
+    assert_eq!(edit["range"]["start"], serde_json::json!({"line": 1, "character": 13}));
+    // Applying it gives a file that checks and whose claim holds (common practice, no source).
+    let fixed = temp_file("fixed.kelp", "let depth = 2\nexpect depth == 2\n");
+    let (code, _, _) = kelp(&["check", fixed.to_str().unwrap()]);
+    assert_eq!(code, 0);
+    let (_, _, err) = kelp(&["check", p.to_str().unwrap()]);
+    assert!(err.contains("change `=` to `==`"), "{err}");
+}
+
+#[test]
 fn related_information_in_json() {
     let p = temp_file("dup.kelp", "let a = 1\nlet a = 2\n");
     let (_, out, _) = kelp(&["check", "--format", "json", p.to_str().unwrap()]);

@@ -7,20 +7,29 @@ use kelp_lang::builtins::{Builtin, BUILTINS};
 pub const STATEMENT_KEYWORDS: &[&str] = &["set", "curve", "let", "wave", "expect", "sample", "plot"];
 pub const OTHER_KEYWORDS: &[&str] = &["over", "to", "within", "in", "step", "and", "or", "not", "true", "false"];
 
-/// A snippet for a call: required positional parameters as tab stops, required keyword
-/// arguments spelled out.
-pub fn call_snippet(b: &Builtin) -> String {
+/// A snippet for a call: required arguments as tab stops whose default text parses and
+/// checks when accepted unchanged (a curve or wave the file defines, a small literal).
+pub fn call_snippet(b: &Builtin, symbols: &[kelp_lang::check::Symbol]) -> String {
+    // `$`, `}` and `\` are special inside a snippet's placeholder.
+    let escape = |t: String| t.replace('\\', "\\\\").replace('$', "\\$").replace('}', "\\}");
+    // Arguments whose sizes depend on each other: a small example that checks.
+    if b.name == "soliton" {
+        return "soliton(kappa = ${1:[1, 2]}, a = ${2:[[1, 1]]})$0".into();
+    }
     let mut parts = Vec::new();
     let mut n = 1;
     for p in b.positional.iter().filter(|p| p.required) {
-        parts.push(format!("${{{n}:{}}}", p.name));
+        parts.push(format!("${{{n}:{}}}", escape(kelp_lang::check::placeholder(p.kind, symbols, None))));
         n += 1;
     }
     for p in b.keywords.iter().filter(|p| p.required) {
-        parts.push(format!("{} = ${{{n}}}", p.name));
+        parts.push(format!("{} = ${{{n}:{}}}", p.name, escape(kelp_lang::check::placeholder(p.kind, symbols, None))));
         n += 1;
     }
-    format!("{}({})", b.name, parts.join(", "))
+    if b.region == kelp_lang::builtins::RegionUse::Required {
+        parts.push(format!("${{{n}:x in -4..4, y in -4..4, t = 0}}"));
+    }
+    format!("{}({})$0", b.name, parts.join(", "))
 }
 
 /// The built-in whose argument list contains byte offset `at`, and the index of the
@@ -28,7 +37,7 @@ pub fn call_snippet(b: &Builtin) -> String {
 pub fn call_at(text: &str, at: usize) -> Option<(&'static Builtin, u32)> {
     let b = text.as_bytes();
     let at = at.min(b.len());
-    let line_start = text[..at].rfind('\n').map_or(0, |i| i + 1);
+    let line_start = text[..at].rfind(['\n', '\r']).map_or(0, |i| i + 1);
     let mut depth = 0i32;
     let mut commas = 0u32;
     let mut i = at;
@@ -56,10 +65,12 @@ pub fn call_at(text: &str, at: usize) -> Option<(&'static Builtin, u32)> {
 }
 
 /// Lines to fold: runs of two or more comment lines, and statements that span lines.
+/// Lines as LSP counts them (`\n`, `\r\n`, lone `\r`).
 pub fn folds(text: &str, statements: &[(usize, usize)]) -> Vec<(u32, u32)> {
+    use kelp_lang::span::{lines, Encoding, LineIndex};
     let mut out = Vec::new();
     let mut run: Option<(u32, u32)> = None;
-    for (n, line) in text.lines().enumerate() {
+    for (n, line) in lines(text).enumerate() {
         let n = n as u32;
         if line.trim_start().starts_with('#') {
             run = Some(run.map_or((n, n), |(s, _)| (s, n)));
@@ -76,8 +87,9 @@ pub fn folds(text: &str, statements: &[(usize, usize)]) -> Vec<(u32, u32)> {
             out.push((s, e));
         }
     }
+    let index = LineIndex::new(text);
     for &(a, b) in statements {
-        let (la, lb) = (text[..a].matches('\n').count() as u32, text[..b].matches('\n').count() as u32);
+        let (la, lb) = (index.line_col(a, Encoding::Utf8).line, index.line_col(b, Encoding::Utf8).line);
         if lb > la {
             out.push((la, lb));
         }

@@ -2,84 +2,108 @@
 //!
 //! Scheduling. Every document edit is applied synchronously, under one lock and before
 //! any `.await`, so edits are never reordered; a change whose version is not newer than
-//! the document's is dropped. Syntax and checker diagnostics are published at once.
-//! Evaluation (curve algebra, theta values) runs on a blocking worker after a pause in
-//! typing, bounded in time, and is dropped if the document moved on meanwhile; its
-//! results are cached by the text's tokens without comments, so editing a comment,
-//! spacing, reopening or undoing re-evaluates nothing (`reuse.rs` moves the stored
-//! diagnostics to the new positions).
+//! the document's is dropped. Each edit re-parses and re-checks the text and computes
+//! every statement's key (`kelp_evaluator::statement_keys`); what the document shows is
+//! composed at once from the views of statements already evaluated (`doc.rs`), so
+//! evaluated diagnostics never vanish. The new version goes to the document's own
+//! evaluation thread (`worker.rs`), which replays unchanged statements, computes the
+//! rest, and cancels work the new version no longer needs. Publication goes through one
+//! task that always sends the newest state, so an older version never overwrites a newer.
 
+mod actions;
 mod analysis;
 mod assist;
+mod complete;
 mod convert;
-mod reuse;
+mod doc;
+mod framing;
+mod hover;
+mod navigate;
+mod stdio;
+mod worker;
 
-use analysis::{evaluate_text, EvalSummary};
-use kelp_lang::span::LineIndex;
-use kelp_lang::{check, Span};
+use doc::Doc;
+use kelp_lang::Span;
 use std::collections::HashMap;
 use std::sync::{Arc, Mutex};
 use std::time::Duration;
+use tokio::sync::mpsc::{unbounded_channel, UnboundedReceiver, UnboundedSender};
 use tower_lsp_server::jsonrpc::Result;
 use tower_lsp_server::ls_types::*;
-use tower_lsp_server::{Client, LanguageServer, LspService, Server};
+use tower_lsp_server::{Client, LanguageServer, LspService};
 
 /// The command behind the code lenses: evaluate the file and report one value.
 const EVALUATE: &str = "kelp.evaluate";
 /// Writes one `sample` or `plot` (arguments: document URI, statement index).
 const WRITE: &str = "kelp.write";
 
-/// Pause after the last keystroke before evaluating.
-const DEBOUNCE: Duration = Duration::from_millis(150);
-/// Longest an evaluation may run before it is abandoned (its diagnostics say so).
+/// Longest a command's own evaluation may run before it is abandoned.
 const EVAL_BUDGET: Duration = Duration::from_secs(30);
+/// An evaluation running longer than this shows work-done progress.
+const PROGRESS_AFTER: Duration = Duration::from_millis(500);
 
-struct Doc {
-    text: String,
-    version: i32,
-    index: LineIndex,
-    /// The checked program of this version (parse + check run once per edit).
-    checked: Arc<kelp_lang::check::Checked>,
-    /// Bumped on every edit; a finished evaluation publishes only if it is still current.
-    generation: u64,
-    eval: Option<Arc<EvalSummary>>,
+/// What the client said it can do, and the server's options (`initializationOptions`).
+#[derive(Clone, Debug)]
+pub(crate) struct Options {
+    /// Hover as markdown (else plain text).
+    pub markdown: bool,
+    /// The client accepts server-created work-done progress.
+    pub progress: bool,
+    /// Facts about curves (K603) as diagnostics too; by default only in hover and inlays.
+    pub facts_as_diagnostics: bool,
 }
 
-impl Doc {
-    /// Everything to publish for this version: the checker's diagnostics and, when the
-    /// evaluation is known, its diagnostics.
-    fn diagnostics(&self, uri: &Uri) -> Vec<Diagnostic> {
-        let eval = self.eval.iter().flat_map(|e| e.diagnostics.iter());
-        self.checked.diagnostics.iter().chain(eval).map(|d| convert::diagnostic(&self.index, uri, d)).collect()
+impl Default for Options {
+    fn default() -> Self {
+        Options { markdown: true, progress: false, facts_as_diagnostics: false }
     }
 }
 
 #[derive(Default)]
-struct State {
+pub(crate) struct State {
     docs: HashMap<Uri, Doc>,
-    /// Evaluations by the text's shape (tokens without comments), with the token spans
-    /// of the text they were computed for.
-    cache: HashMap<String, (Arc<EvalSummary>, Vec<Span>)>,
     /// The workspace folders the client named (outputs are written only inside them).
     folders: Vec<std::path::PathBuf>,
-}
-
-impl State {
-    /// A cached evaluation for this text, re-anchored to it.
-    fn cached(&self, text: &str) -> Option<Arc<EvalSummary>> {
-        let now = reuse::shape(text);
-        let (summary, spans) = self.cache.get(&now.key)?;
-        if spans == &now.spans {
-            return Some(summary.clone());
-        }
-        let old = reuse::Shape { key: now.key.clone(), spans: spans.clone() };
-        Some(Arc::new(reuse::moved(summary, &old, &now)))
-    }
+    options: Options,
+    /// Documents opened so far: a closed and reopened document gets a new identity.
+    opened: u64,
+    /// Whether the client expands snippets in completions (else plain text is sent).
+    snippets: bool,
 }
 
 pub struct Backend {
     client: Client,
     state: Arc<Mutex<State>>,
+    /// Documents whose diagnostics should be published (the newest state is sent).
+    publish: UnboundedSender<Uri>,
+}
+
+fn lock(state: &Mutex<State>) -> std::sync::MutexGuard<'_, State> {
+    // A panic elsewhere must not wedge the server: the state is still consistent.
+    state.lock().unwrap_or_else(|e| e.into_inner())
+}
+
+/// Sends each document's newest diagnostics, one publication at a time.
+async fn publisher(client: Client, state: Arc<Mutex<State>>, mut rx: UnboundedReceiver<Uri>) {
+    while let Some(first) = rx.recv().await {
+        let mut uris = vec![first];
+        while let Ok(u) = rx.try_recv() {
+            if !uris.contains(&u) {
+                uris.push(u);
+            }
+        }
+        for uri in uris {
+            let now = {
+                let st = lock(&state);
+                let facts = st.options.facts_as_diagnostics;
+                st.docs.get(&uri).map(|d| (d.diagnostics(&uri, facts), d.version))
+            };
+            match now {
+                Some((diags, version)) => client.publish_diagnostics(uri, diags, Some(version)).await,
+                None => client.publish_diagnostics(uri, vec![], None).await,
+            }
+        }
+    }
 }
 
 /// Serves on stdin/stdout until the client exits.
@@ -89,8 +113,6 @@ pub fn run() -> i32 {
     let rt = match tokio::runtime::Builder::new_multi_thread()
         .worker_threads(2)
         .thread_stack_size(crate::STACK_BYTES)
-        // Superseded evaluations cannot be stopped mid-way; at most 16 run at once (more
-        // wait), which also bounds the address space the large stacks reserve.
         .max_blocking_threads(16)
         .enable_all()
         .build()
@@ -102,14 +124,138 @@ pub fn run() -> i32 {
         }
     };
     rt.block_on(async {
-        let (service, socket) =
-            LspService::new(|client| Backend { client, state: Arc::new(Mutex::new(State::default())) });
-        Server::new(tokio::io::stdin(), tokio::io::stdout(), socket).serve(service).await;
+        let (service, socket) = LspService::new(|client| {
+            let state = Arc::new(Mutex::new(State::default()));
+            let (tx, rx) = unbounded_channel();
+            tokio::spawn(publisher(client.clone(), state.clone(), rx));
+            Backend { client, state, publish: tx }
+        });
+        // Malformed input gets error replies and a panicking handler an error reply for its
+        // request only (`stdio.rs`); neither ends the server.
+        stdio::serve(std::io::stdin(), tokio::io::stdout(), service, socket).await;
     });
     0
 }
 
+/// `kelp/evaluated`: sent after each evaluation of a document, with what it did (for
+/// clients that show it, and for tests that check superseded work stops).
+struct Evaluated;
+
+impl notification::Notification for Evaluated {
+    type Params = serde_json::Value;
+    const METHOD: &'static str = "kelp/evaluated";
+}
+
+/// Cancels a token when dropped: a request future dropped by `$/cancelRequest` stops its
+/// evaluation.
+struct CancelOnDrop(kelp_evaluator::CancelToken);
+
+impl Drop for CancelOnDrop {
+    fn drop(&mut self) {
+        self.0.cancel();
+    }
+}
+
+/// The whole file evaluated on a blocking thread, stopped when the caller goes away.
+async fn evaluate_now<T: Send + 'static>(
+    text: String,
+    mode: kelp_evaluator::Mode,
+    read: impl FnOnce(&kelp_evaluator::Evaluation) -> T + Send + 'static,
+) -> Option<T> {
+    let token = kelp_evaluator::CancelToken::new();
+    let _guard = CancelOnDrop(token.clone());
+    let job = tokio::task::spawn_blocking(move || {
+        std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
+            let checked = kelp_lang::check(&text);
+            read(&kelp_evaluator::evaluate_cancellable(&checked, &text, &mode, &token))
+        }))
+        .ok()
+    });
+    match tokio::time::timeout(EVAL_BUDGET, job).await {
+        Ok(Ok(e)) => e,
+        _ => None,
+    }
+}
+
 impl Backend {
+    fn lock(&self) -> std::sync::MutexGuard<'_, State> {
+        lock(&self.state)
+    }
+
+    /// The evaluation thread of a newly opened document, reporting back into the state.
+    fn start_worker(&self, uri: &Uri, identity: u64) -> Option<worker::Worker> {
+        let (state, publish, uri_done) = (self.state.clone(), self.publish.clone(), uri.clone());
+        let (client_done, handle_done) = (self.client.clone(), tokio::runtime::Handle::current());
+        let done = move |d: worker::Done| {
+            let mut st = lock(&state);
+            let Some(doc) = st.docs.get_mut(&uri_done).filter(|doc| doc.identity == identity) else { return };
+            doc.views.extend(d.views);
+            doc.failed = d.failed;
+            if doc.busy == Some(d.generation) {
+                doc.busy = None;
+            }
+            // Keep views of this version only once they outnumber its statements well.
+            if doc.views.len() > 2 * doc.keys.len() + 64 {
+                let keep: std::collections::HashSet<_> = doc.keys.iter().flatten().copied().collect();
+                doc.views.retain(|k, _| keep.contains(k));
+            }
+            doc.compose();
+            let note = serde_json::json!({
+                "uri": uri_done.as_str(), "version": d.version, "complete": d.complete,
+                "replayed": d.replayed, "computed": d.computed, "ms": d.took.as_secs_f64() * 1e3,
+                "pending": doc.pending,
+            });
+            drop(st);
+            let _ = publish.send(uri_done.clone());
+            let client = client_done.clone();
+            handle_done.spawn(async move { client.send_notification::<Evaluated>(note).await });
+        };
+        let (state, client, uri_started) = (self.state.clone(), self.client.clone(), uri.clone());
+        let handle = tokio::runtime::Handle::current();
+        let started = move |generation: u64| {
+            let progress = {
+                let mut st = lock(&state);
+                let progress = st.options.progress;
+                match st.docs.get_mut(&uri_started).filter(|doc| doc.identity == identity) {
+                    Some(doc) => doc.busy = Some(generation),
+                    None => return,
+                }
+                progress
+            };
+            if progress {
+                let (state, client, uri) = (state.clone(), client.clone(), uri_started.clone());
+                handle.spawn(async move { show_progress(client, state, uri, identity, generation).await });
+            }
+        };
+        match worker::Worker::spawn(crate::STACK_BYTES, done, started) {
+            Ok(w) => Some(w),
+            Err(e) => {
+                eprintln!("kelp lsp: cannot start an evaluation thread: {e}");
+                None
+            }
+        }
+    }
+
+    /// Composes the document's view now, queues its publication and sends the version to
+    /// its evaluation thread.
+    fn refresh(&self, uri: &Uri) {
+        let mut st = self.lock();
+        let Some(doc) = st.docs.get_mut(uri) else { return };
+        doc.compose();
+        if doc.pending > 0 {
+            if let Some(w) = &doc.worker {
+                w.submit(worker::Job {
+                    generation: doc.generation,
+                    version: doc.version,
+                    text: Arc::from(doc.text.as_str()),
+                    checked: doc.checked.clone(),
+                    keys: doc.keys.clone(),
+                });
+            }
+        }
+        let _ = self.publish.send(uri.clone());
+    }
+
     /// `kelp.write`: evaluates the document and writes the one output statement asked for,
     /// inside the document's folder tree, with work-done progress and a message naming the file.
     async fn write_output(&self, params: ExecuteCommandParams) -> Result<Option<LSPAny>> {
@@ -140,25 +286,23 @@ impl Backend {
             Some(token) => Some(self.client.progress(token, "kelp: writing output".to_string()).begin().await),
             None => None,
         };
-        let job = tokio::task::spawn_blocking(move || {
-            std::panic::catch_unwind(|| {
-                let checked = kelp_lang::check(&text);
-                let e =
-                    kelp_evaluator::evaluate(&checked, &text, &kelp_evaluator::Mode::Run { base, only: Some(index) });
-                let errors: Vec<String> =
-                    e.diagnostics.iter().filter(|d| d.is_error()).map(|d| d.message.clone()).collect();
-                (e.outputs, errors)
-            })
+        // Outputs are written whole or not at all (`output::write`), so cancelling is safe.
+        let job = evaluate_now(text, kelp_evaluator::Mode::Run { base, only: Some(index) }, |e| {
+            let errors: Vec<String> =
+                e.diagnostics.iter().filter(|d| d.is_error()).map(|d| d.message.clone()).collect();
+            (e.outputs.clone(), errors)
         });
-        let (message, written) = match tokio::time::timeout(EVAL_BUDGET, job).await {
-            Ok(Ok(Ok((outputs, errors)))) => {
+        let (message, written) = match job.await {
+            Some((outputs, errors)) => {
                 if outputs.is_empty() {
                     (format!("kelp wrote nothing: {}", errors.join("; ")), vec![])
                 } else {
                     (format!("kelp wrote {}", outputs.join(", ")), outputs)
                 }
             }
-            _ => (String::from("kelp: the output could not be written (evaluation failed or took too long)"), vec![]),
+            None => {
+                (String::from("kelp: the output could not be written (evaluation failed or took too long)"), vec![])
+            }
         };
         if let Some(p) = progress {
             p.finish_with_message(message.clone()).await;
@@ -167,88 +311,29 @@ impl Backend {
         self.client.show_message(kind, message).await;
         Ok(Some(serde_json::json!({ "written": written })))
     }
+}
 
-    fn lock(&self) -> std::sync::MutexGuard<'_, State> {
-        // A panic elsewhere must not wedge the server: the state is still consistent.
-        self.state.lock().unwrap_or_else(|e| e.into_inner())
+/// Work-done progress while an evaluation of this document runs past `PROGRESS_AFTER`.
+async fn show_progress(client: Client, state: Arc<Mutex<State>>, uri: Uri, identity: u64, generation: u64) {
+    let busy = |state: &Mutex<State>| {
+        lock(state).docs.get(&uri).is_some_and(|d| d.identity == identity && d.busy.is_some_and(|g| g >= generation))
+    };
+    tokio::time::sleep(PROGRESS_AFTER).await;
+    if !busy(&state) {
+        return;
     }
-
-    /// Publishes the checker's diagnostics now (with the last evaluation's, if it is for
-    /// this very text) and schedules an evaluation.
-    async fn refresh(&self, uri: Uri) {
-        let (diags, version, generation, text) = {
-            let mut st = self.lock();
-            let cached = st.docs.get(&uri).and_then(|d| st.cached(&d.text));
-            let Some(doc) = st.docs.get_mut(&uri) else { return };
-            doc.eval = cached.clone();
-            (
-                doc.diagnostics(&uri),
-                doc.version,
-                doc.generation,
-                if cached.is_some() { None } else { Some(doc.text.clone()) },
-            )
-        };
-        self.client.publish_diagnostics(uri.clone(), diags, Some(version)).await;
-        if let Some(text) = text {
-            self.schedule(uri, generation, text);
-        }
+    let token = NumberOrString::String(format!("kelp-eval-{identity}-{generation}"));
+    let created = client
+        .send_request::<request::WorkDoneProgressCreate>(WorkDoneProgressCreateParams { token: token.clone() })
+        .await;
+    if created.is_err() {
+        return;
     }
-
-    fn schedule(&self, uri: Uri, generation: u64, text: String) {
-        let state = self.state.clone();
-        let client = self.client.clone();
-        tokio::spawn(async move {
-            tokio::time::sleep(DEBOUNCE).await;
-            let current = |st: &State| st.docs.get(&uri).is_some_and(|d| d.generation == generation);
-            if !current(&state.lock().unwrap_or_else(|e| e.into_inner())) {
-                return;
-            }
-            let worker_text = text.clone();
-            let job = tokio::task::spawn_blocking(move || evaluate_text(&worker_text));
-            let summary = match tokio::time::timeout(EVAL_BUDGET, job).await {
-                Ok(Ok(s)) => s,
-                _ => EvalSummary {
-                    diagnostics: vec![kelp_lang::Diagnostic::warning(
-                        kelp_lang::Code::BudgetExceeded,
-                        Span::new(0, 0),
-                        format!("evaluation took longer than {} s and was abandoned", EVAL_BUDGET.as_secs()),
-                    )],
-                    values: vec![],
-                    curve_hints: vec![],
-                },
-            };
-            let summary = Arc::new(summary);
-            let publish = {
-                let mut st = state.lock().unwrap_or_else(|e| e.into_inner());
-                if st.cache.len() > 64 {
-                    st.cache.clear();
-                }
-                let shape = reuse::shape(&text);
-                st.cache.insert(shape.key, (summary.clone(), shape.spans));
-                if !current(&st) {
-                    return;
-                }
-                let doc = st.docs.get_mut(&uri).unwrap();
-                doc.eval = Some(summary.clone());
-                (doc.diagnostics(&uri), doc.version)
-            };
-            client.publish_diagnostics(uri, publish.0, Some(publish.1)).await;
-        });
+    let p = client.progress(token, "kelp: evaluating").begin().await;
+    while busy(&state) {
+        tokio::time::sleep(Duration::from_millis(100)).await;
     }
-
-    /// The name (definition or use) under a position, with its symbol index.
-    fn symbol_at(&self, uri: &Uri, pos: Position) -> Option<(usize, Span, String)> {
-        let st = self.lock();
-        let doc = st.docs.get(uri)?;
-        let at = convert::offset(&doc.index, pos);
-        let checked = &doc.checked;
-        let hit = |s: Span| s.start <= at && at <= s.end;
-        if let Some((i, s)) = checked.symbols.iter().enumerate().find(|(_, s)| hit(s.span)) {
-            return Some((i, s.span, s.name.clone()));
-        }
-        let r = checked.references.iter().find(|r| hit(r.span))?;
-        Some((r.symbol, r.span, r.name.clone()))
-    }
+    p.finish().await;
 }
 
 /// The identifier around a byte offset.
@@ -271,12 +356,22 @@ impl LanguageServer for Backend {
     async fn initialize(&self, params: InitializeParams) -> Result<InitializeResult> {
         {
             let mut st = self.lock();
+            let caps = &params.capabilities;
+            let formats =
+                caps.text_document.as_ref().and_then(|t| t.hover.as_ref()).and_then(|h| h.content_format.as_ref());
+            st.options.markdown = formats.is_none_or(|f| f.contains(&MarkupKind::Markdown));
+            st.options.progress = caps.window.as_ref().and_then(|w| w.work_done_progress).unwrap_or(false);
+            let opts = params.initialization_options.as_ref();
+            st.options.facts_as_diagnostics =
+                opts.and_then(|o| o.get("curveFactsAsDiagnostics")).and_then(|v| v.as_bool()).unwrap_or(false);
             #[allow(deprecated)]
             let root = params.root_uri.iter().filter_map(|u| u.to_file_path().map(|p| p.to_path_buf())).collect();
             st.folders = match &params.workspace_folders {
                 Some(f) => f.iter().filter_map(|w| w.uri.to_file_path().map(|p| p.to_path_buf())).collect(),
                 None => root,
             };
+            let item = params.capabilities.text_document.as_ref().and_then(|t| t.completion.as_ref());
+            st.snippets = item.and_then(|c| c.completion_item.as_ref()).and_then(|i| i.snippet_support) == Some(true);
         }
         Ok(InitializeResult {
             server_info: Some(ServerInfo { name: "kelp".into(), version: Some(env!("CARGO_PKG_VERSION").into()) }),
@@ -286,10 +381,20 @@ impl LanguageServer for Backend {
                 hover_provider: Some(HoverProviderCapability::Simple(true)),
                 definition_provider: Some(OneOf::Left(true)),
                 references_provider: Some(OneOf::Left(true)),
-                rename_provider: Some(OneOf::Left(true)),
+                rename_provider: Some(OneOf::Right(RenameOptions {
+                    prepare_provider: Some(true),
+                    work_done_progress_options: Default::default(),
+                })),
+                code_action_provider: Some(CodeActionProviderCapability::Options(CodeActionOptions {
+                    code_action_kinds: Some(vec![CodeActionKind::QUICKFIX, CodeActionKind::REFACTOR]),
+                    ..Default::default()
+                })),
                 document_symbol_provider: Some(OneOf::Left(true)),
                 document_formatting_provider: Some(OneOf::Left(true)),
-                completion_provider: Some(CompletionOptions::default()),
+                completion_provider: Some(CompletionOptions {
+                    trigger_characters: Some(vec!["(".into(), ",".into()]),
+                    ..Default::default()
+                }),
                 signature_help_provider: Some(SignatureHelpOptions {
                     trigger_characters: Some(vec!["(".into(), ",".into()]),
                     ..Default::default()
@@ -339,16 +444,18 @@ impl LanguageServer for Backend {
 
     async fn did_open(&self, params: DidOpenTextDocumentParams) {
         let d = params.text_document;
-        {
+        let identity = {
             let mut st = self.lock();
-            let index = LineIndex::new(&d.text);
-            let checked = Arc::new(check(&d.text));
-            st.docs.insert(
-                d.uri.clone(),
-                Doc { text: d.text, version: d.version, index, checked, generation: 0, eval: None },
-            );
+            st.opened += 1;
+            st.opened
+        };
+        let worker = self.start_worker(&d.uri, identity);
+        {
+            let mut doc = Doc::new(d.text, d.version, identity);
+            doc.worker = worker;
+            self.lock().docs.insert(d.uri.clone(), doc);
         }
-        self.refresh(d.uri).await;
+        self.refresh(&d.uri);
     }
 
     async fn did_change(&self, params: DidChangeTextDocumentParams) {
@@ -361,160 +468,77 @@ impl LanguageServer for Backend {
                 return; // stale or repeated notification
             }
             for change in params.content_changes {
-                match change.range {
-                    None => doc.text = change.text,
-                    Some(r) => {
-                        let (a, b) = (convert::offset(&doc.index, r.start), convert::offset(&doc.index, r.end));
-                        let (a, b) = (a.min(doc.text.len()), b.min(doc.text.len()).max(a.min(doc.text.len())));
-                        if doc.text.is_char_boundary(a) && doc.text.is_char_boundary(b) {
-                            doc.text.replace_range(a..b, &change.text);
-                        }
-                    }
-                }
-                doc.index = LineIndex::new(&doc.text);
+                let range =
+                    change.range.map(|r| (convert::offset(&doc.index, r.start), convert::offset(&doc.index, r.end)));
+                doc.edit(range, &change.text);
             }
             doc.version = params.text_document.version;
-            doc.checked = Arc::new(check(&doc.text));
-            doc.generation += 1;
-            doc.eval = None;
+            doc.recheck();
         }
-        self.refresh(uri).await;
+        self.refresh(&uri);
     }
 
     async fn did_close(&self, params: DidCloseTextDocumentParams) {
         let uri = params.text_document.uri;
+        // Dropping the document drops its worker, which cancels what it runs.
         self.lock().docs.remove(&uri);
-        self.client.publish_diagnostics(uri, vec![], None).await;
+        let _ = self.publish.send(uri);
     }
 
     async fn hover(&self, params: HoverParams) -> Result<Option<Hover>> {
-        let uri = params.text_document_position_params.text_document.uri;
-        let pos = params.text_document_position_params.position;
-        let sym = self.symbol_at(&uri, pos);
+        let p = params.text_document_position_params;
         let st = self.lock();
-        let Some(doc) = st.docs.get(&uri) else { return Ok(None) };
-        let at = convert::offset(&doc.index, pos);
-        let (text, span) = if let Some((_, span, name)) = sym {
-            let shown = doc.eval.as_ref().and_then(|e| e.values.iter().find(|v| v.name == name).cloned());
-            let body = match shown {
-                Some(v) => {
-                    let mut b = format!("**{}** ({})\n\n```\n{}\n```", v.name, v.kind, v.display);
-                    if v.error_bound > 0.0 {
-                        b.push_str(&format!("\nerror bound {:.1e}", v.error_bound));
-                    }
-                    if let Some(d) = &v.detail {
-                        b.push_str(&format!("\n\n{d}"));
-                    }
-                    b
-                }
-                None if doc.eval.is_none() => format!("**{name}**: being computed"),
-                None => format!("**{name}**: no value (see its diagnostics)"),
-            };
-            (body, span)
-        } else if let Some((s, e)) = word_at(&doc.text, at) {
-            let word = &doc.text[s..e];
-            let Some(b) = kelp_lang::builtins::BUILTINS.iter().find(|b| b.name == word) else { return Ok(None) };
-            (format!("```\n{}\n```\n{}", b.signature, b.summary), Span::new(s, e))
-        } else {
-            return Ok(None);
-        };
-        // Curve facts: the information diagnostic at the curve's name lists them.
-        let mut text = text;
-        if let Some(ev) = &doc.eval {
-            for d in ev.diagnostics.iter().filter(|d| d.code == kelp_lang::Code::ValueInfo && d.span == span) {
-                text.push_str(&format!("\n\n{}", d.message));
-                for n in &d.notes {
-                    text.push_str(&format!("\n- {n}"));
-                }
-            }
-        }
-        Ok(Some(Hover {
-            contents: HoverContents::Markup(MarkupContent { kind: MarkupKind::Markdown, value: text }),
-            range: Some(convert::range(&doc.index, span)),
-        }))
+        let Some(doc) = st.docs.get(&p.text_document.uri) else { return Ok(None) };
+        Ok(hover::hover(doc, p.position, st.options.markdown))
     }
 
     async fn goto_definition(&self, params: GotoDefinitionParams) -> Result<Option<GotoDefinitionResponse>> {
-        let uri = params.text_document_position_params.text_document.uri;
-        let Some((sym, _, _)) = self.symbol_at(&uri, params.text_document_position_params.position) else {
-            return Ok(None);
-        };
+        let p = params.text_document_position_params;
         let st = self.lock();
-        let Some(doc) = st.docs.get(&uri) else { return Ok(None) };
-        let s = &doc.checked.symbols[sym];
-        Ok(Some(GotoDefinitionResponse::Scalar(Location {
-            uri: uri.clone(),
-            range: convert::range(&doc.index, s.span),
-        })))
+        Ok(st.docs.get(&p.text_document.uri).and_then(|d| navigate::definition(d, &p.text_document.uri, p.position)))
     }
 
     async fn references(&self, params: ReferenceParams) -> Result<Option<Vec<Location>>> {
-        let uri = params.text_document_position.text_document.uri;
-        let Some((sym, _, _)) = self.symbol_at(&uri, params.text_document_position.position) else {
-            return Ok(None);
-        };
+        let p = params.text_document_position;
         let st = self.lock();
-        let Some(doc) = st.docs.get(&uri) else { return Ok(None) };
-        let checked = &doc.checked;
-        let mut spans: Vec<Span> = checked.references.iter().filter(|r| r.symbol == sym).map(|r| r.span).collect();
-        if params.context.include_declaration {
-            spans.insert(0, checked.symbols[sym].span);
-        }
-        Ok(Some(
-            spans.into_iter().map(|s| Location { uri: uri.clone(), range: convert::range(&doc.index, s) }).collect(),
-        ))
+        let Some(doc) = st.docs.get(&p.text_document.uri) else { return Ok(None) };
+        Ok(navigate::references(doc, &p.text_document.uri, p.position, params.context.include_declaration))
+    }
+
+    async fn prepare_rename(&self, params: TextDocumentPositionParams) -> Result<Option<PrepareRenameResponse>> {
+        let st = self.lock();
+        let Some(doc) = st.docs.get(&params.text_document.uri) else { return Ok(None) };
+        navigate::prepare_rename(doc, params.position)
     }
 
     async fn rename(&self, params: RenameParams) -> Result<Option<WorkspaceEdit>> {
-        let uri = params.text_document_position.text_document.uri;
-        let new = params.new_name;
-        let valid = new.chars().next().is_some_and(|c| c.is_ascii_alphabetic() || c == '_')
-            && new.chars().all(|c| c.is_ascii_alphanumeric() || c == '_');
-        if !valid {
-            return Err(tower_lsp_server::jsonrpc::Error::invalid_params(format!("`{new}` is not a valid name")));
-        }
-        let Some((sym, _, _)) = self.symbol_at(&uri, params.text_document_position.position) else {
-            return Ok(None);
-        };
+        let p = params.text_document_position;
         let st = self.lock();
-        let Some(doc) = st.docs.get(&uri) else { return Ok(None) };
-        let checked = &doc.checked;
-        let mut spans = vec![checked.symbols[sym].span];
-        spans.extend(checked.references.iter().filter(|r| r.symbol == sym).map(|r| r.span));
-        let edits = spans
-            .into_iter()
-            .map(|s| TextEdit { range: convert::range(&doc.index, s), new_text: new.clone() })
-            .collect();
-        Ok(Some(WorkspaceEdit::new(HashMap::from([(uri.clone(), edits)]))))
+        let Some(doc) = st.docs.get(&p.text_document.uri) else { return Ok(None) };
+        navigate::rename(doc, &p.text_document.uri, p.position, params.new_name)
     }
 
     async fn document_symbol(&self, params: DocumentSymbolParams) -> Result<Option<DocumentSymbolResponse>> {
         let st = self.lock();
+        Ok(st.docs.get(&params.text_document.uri).map(navigate::outline))
+    }
+
+    async fn code_action(&self, params: CodeActionParams) -> Result<Option<CodeActionResponse>> {
+        let st = self.lock();
         let Some(doc) = st.docs.get(&params.text_document.uri) else { return Ok(None) };
-        let checked = &doc.checked;
-        #[allow(deprecated)] // `deprecated` is a required field of the LSP type
-        let symbols = checked
-            .symbols
-            .iter()
-            .map(|s| {
-                let stmt = checked.program.stmts[s.stmt].span;
-                DocumentSymbol {
-                    name: s.name.clone(),
-                    detail: Some(format!("{:?}", s.def).to_lowercase()),
-                    kind: match format!("{:?}", s.def).as_str() {
-                        "Curve" => SymbolKind::CLASS,
-                        "Wave" => SymbolKind::EVENT,
-                        _ => SymbolKind::VARIABLE,
-                    },
-                    tags: None,
-                    deprecated: None,
-                    range: convert::range(&doc.index, stmt),
-                    selection_range: convert::range(&doc.index, s.span),
-                    children: None,
-                }
-            })
-            .collect();
-        Ok(Some(DocumentSymbolResponse::Nested(symbols)))
+        Ok(Some(actions::code_actions(doc, &params.text_document.uri, &params)))
+    }
+
+    async fn completion(&self, params: CompletionParams) -> Result<Option<CompletionResponse>> {
+        let p = params.text_document_position;
+        let st = self.lock();
+        Ok(st.docs.get(&p.text_document.uri).map(|d| complete::completion(d, p.position, st.snippets)))
+    }
+
+    async fn signature_help(&self, params: SignatureHelpParams) -> Result<Option<SignatureHelp>> {
+        let p = params.text_document_position_params;
+        let st = self.lock();
+        Ok(st.docs.get(&p.text_document.uri).and_then(|d| complete::signature_help(d, p.position)))
     }
 
     async fn formatting(&self, params: DocumentFormattingParams) -> Result<Option<Vec<TextEdit>>> {
@@ -526,66 +550,6 @@ impl LanguageServer for Backend {
         }
         let whole = Span::new(0, doc.text.len());
         Ok(Some(vec![TextEdit { range: convert::range(&doc.index, whole), new_text: formatted }]))
-    }
-
-    async fn completion(&self, params: CompletionParams) -> Result<Option<CompletionResponse>> {
-        let uri = params.text_document_position.text_document.uri;
-        let st = self.lock();
-        let Some(doc) = st.docs.get(&uri) else { return Ok(None) };
-        let checked = &doc.checked;
-        let mut items: Vec<CompletionItem> = Vec::new();
-        for k in assist::STATEMENT_KEYWORDS.iter().chain(assist::OTHER_KEYWORDS) {
-            items.push(CompletionItem {
-                label: k.to_string(),
-                kind: Some(CompletionItemKind::KEYWORD),
-                ..Default::default()
-            });
-        }
-        for s in &checked.symbols {
-            items.push(CompletionItem {
-                label: s.name.clone(),
-                kind: Some(CompletionItemKind::VARIABLE),
-                detail: Some(format!("{:?}", s.def).to_lowercase()),
-                ..Default::default()
-            });
-        }
-        for b in kelp_lang::builtins::BUILTINS {
-            items.push(CompletionItem {
-                label: b.name.to_string(),
-                kind: Some(CompletionItemKind::FUNCTION),
-                detail: Some(b.signature.to_string()),
-                documentation: Some(Documentation::String(b.summary.to_string())),
-                insert_text: Some(assist::call_snippet(b)),
-                insert_text_format: Some(InsertTextFormat::SNIPPET),
-                ..Default::default()
-            });
-        }
-        Ok(Some(CompletionResponse::Array(items)))
-    }
-
-    async fn signature_help(&self, params: SignatureHelpParams) -> Result<Option<SignatureHelp>> {
-        let uri = params.text_document_position_params.text_document.uri;
-        let st = self.lock();
-        let Some(doc) = st.docs.get(&uri) else { return Ok(None) };
-        let at = convert::offset(&doc.index, params.text_document_position_params.position);
-        let Some((b, arg)) = assist::call_at(&doc.text, at) else { return Ok(None) };
-        let parameters: Vec<ParameterInformation> = b
-            .positional
-            .iter()
-            .chain(b.keywords)
-            .map(|p| ParameterInformation { label: ParameterLabel::Simple(p.name.to_string()), documentation: None })
-            .collect();
-        let active = arg.min(parameters.len().saturating_sub(1) as u32);
-        Ok(Some(SignatureHelp {
-            signatures: vec![SignatureInformation {
-                label: b.signature.to_string(),
-                documentation: Some(Documentation::String(b.summary.to_string())),
-                parameters: Some(parameters),
-                active_parameter: Some(active),
-            }],
-            active_signature: Some(0),
-            active_parameter: Some(active),
-        }))
     }
 
     async fn folding_range(&self, params: FoldingRangeParams) -> Result<Option<Vec<FoldingRange>>> {
@@ -611,8 +575,7 @@ impl LanguageServer for Backend {
             if def != "Let" && def != "Wave" {
                 continue;
             }
-            let shown = doc.eval.as_ref().and_then(|e| e.values.iter().find(|v| v.name == s.name));
-            let title = match shown {
+            let title = match doc.value(&s.name) {
                 Some(v) => {
                     let mut d = v.display.clone();
                     if d.chars().count() > 60 {
@@ -666,12 +629,12 @@ impl LanguageServer for Backend {
             return Err(Error::invalid_params("kelp.evaluate takes a document URI and a name"));
         };
         let uri: Uri = uri.parse().map_err(|_| Error::invalid_params("not a URI"))?;
-        let (text, cached) = {
+        let (text, known) = {
             let st = self.lock();
             let Some(doc) = st.docs.get(&uri) else {
                 return Err(Error::invalid_params("the document is not open"));
             };
-            (doc.text.clone(), doc.eval.clone())
+            (doc.text.clone(), doc.value(&name).cloned())
         };
         // Progress only when the client offered a token: no request back to the client
         // is awaited from here.
@@ -679,22 +642,24 @@ impl LanguageServer for Backend {
             Some(token) => Some(self.client.progress(token, format!("kelp: evaluating {name}")).begin().await),
             None => None,
         };
-        let summary = match cached {
-            Some(s) => s,
-            None => {
-                let job = tokio::task::spawn_blocking(move || evaluate_text(&text));
-                match tokio::time::timeout(EVAL_BUDGET, job).await {
-                    Ok(Ok(s)) => Arc::new(s),
-                    _ => {
-                        if let Some(p) = progress {
-                            p.finish_with_message("abandoned").await;
-                        }
-                        return Err(Error::internal_error());
+        let shown = match known {
+            Some(v) => Some(v),
+            None => match evaluate_now(text, kelp_evaluator::Mode::Check, {
+                let name = name.clone();
+                move |e| e.values.iter().find(|v| v.name == name).map(|v| analysis::shown(&v.name, &v.value))
+            })
+            .await
+            {
+                Some(found) => found,
+                None => {
+                    if let Some(p) = progress {
+                        p.finish_with_message("abandoned").await;
                     }
+                    return Err(Error::internal_error());
                 }
-            }
+            },
         };
-        let shown = summary.values.iter().find(|v| v.name == name).cloned();
+
         let message = match &shown {
             Some(v) if v.error_bound > 0.0 => format!("{name} = {} (± {:.1e})", v.display, v.error_bound),
             Some(v) => format!("{name} = {}", v.display),
@@ -718,7 +683,7 @@ impl LanguageServer for Backend {
         let (mut prev_line, mut prev_start) = (0u32, 0u32);
         for (span, kind) in assist::semantic(&doc.text) {
             let start = convert::position(&doc.index, span.start);
-            let line_end = doc.text[span.start..span.end].find('\n').map_or(span.end, |i| span.start + i);
+            let line_end = doc.text[span.start..span.end].find(['\n', '\r']).map_or(span.end, |i| span.start + i);
             let end = convert::position(&doc.index, line_end);
             let length = end.character.saturating_sub(start.character);
             if length == 0 {
@@ -736,29 +701,46 @@ impl LanguageServer for Backend {
     async fn inlay_hint(&self, params: InlayHintParams) -> Result<Option<Vec<InlayHint>>> {
         let st = self.lock();
         let Some(doc) = st.docs.get(&params.text_document.uri) else { return Ok(None) };
-        let Some(eval) = &doc.eval else { return Ok(Some(vec![])) };
         let mut hints = Vec::new();
+        let hint = |at: usize, label: String| InlayHint {
+            position: convert::position(&doc.index, at),
+            label: InlayHintLabel::String(format!("  {label}")),
+            kind: None,
+            text_edits: None,
+            tooltip: None,
+            padding_left: Some(true),
+            padding_right: None,
+            data: None,
+        };
+        let stmts = &doc.checked.program.stmts;
         for s in &doc.checked.symbols {
             // After a curve: its genus or what stands in the way; after a matrix value: its size.
-            let label = if let Some((_, h)) = eval.curve_hints.iter().find(|(n, _)| *n == s.name) {
-                h.clone()
-            } else if let Some(v) = eval.values.iter().find(|v| v.name == s.name && v.kind == "matrix") {
-                size_of(&v.display)
-            } else {
-                continue;
+            let Some(v) = doc.value(&s.name) else { continue };
+            let label = match (&v.fact, v.kind.as_str()) {
+                (Some(f), _) => f.clone(),
+                (None, "matrix") => size_of(&v.display),
+                _ => continue,
             };
-            let end = doc.checked.program.stmts[s.stmt].span.end;
-            hints.push(InlayHint {
-                position: convert::position(&doc.index, end),
-                label: InlayHintLabel::String(format!("  {label}")),
-                kind: None,
-                text_edits: None,
-                tooltip: None,
-                padding_left: Some(true),
-                padding_right: None,
-                data: None,
-            });
+            hints.push(hint(stmts[s.stmt].span.end, label));
         }
+        // After each claim: whether it holds, is false, or is undecided (or still pending).
+        for (i, stmt) in stmts.iter().enumerate() {
+            if !matches!(stmt.kind, kelp_lang::ast::StmtKind::Expect { .. }) {
+                continue;
+            }
+            let Some(k) = doc.keys.get(i).copied().flatten() else { continue };
+            let label = match doc.views.get(&k).and_then(|v| v.marks.first()) {
+                Some(m) => match m.passed {
+                    Some(true) => "✓ holds",
+                    Some(false) => "✗ false",
+                    None => "? undecided",
+                },
+                None if doc.views.contains_key(&k) => continue,
+                None => "… evaluating",
+            };
+            hints.push(hint(stmt.span.end, label.to_string()));
+        }
+        hints.sort_by_key(|h| (h.position.line, h.position.character));
         Ok(Some(hints))
     }
 }

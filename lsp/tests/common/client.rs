@@ -125,3 +125,11 @@ impl Drop for Server {
         let _ = self.child.kill();
     }
 }
+
+impl Server {
+    /// Writes bytes as they are, framed or not (for hostile input).
+    pub fn send_raw(&mut self, bytes: &[u8]) {
+        self.stdin.write_all(bytes).unwrap();
+        self.stdin.flush().unwrap();
+    }
+}
