@@ -1,6 +1,6 @@
 //! `smooth`, `genus` and `singular_points`: the exact curve algebra behind the built-ins,
-//! computed once per curve, with an information diagnostic at the curve's name listing
-//! its singular points.
+//! computed once per curve; the information diagnostic at the curve's name listing its
+//! singular points is added after the evaluation (`facts_info`).
 
 use crate::algebra::curve::{CurveFacts, NoGenus};
 use crate::eval::{fail, Evaluator, Fail};
@@ -9,9 +9,24 @@ use crate::value::{CurveValue, SingularInfo, Value, Valued};
 use kelp_lang::{Code, Diagnostic, Span};
 use std::rc::Rc;
 
+/// The information diagnostic at a curve's name listing its singular points, once its
+/// facts are computed (`None` before).
+pub(crate) fn facts_info(c: &CurveValue, at: Span) -> Option<Diagnostic> {
+    let f = c.facts.get()?;
+    let lines = f.summary();
+    let msg = if lines.is_empty() {
+        format!("`{}` is smooth (degree {})", c.name, f.degree)
+    } else {
+        format!("`{}` has {} singular point(s)", c.name, f.singular_count())
+    };
+    let mut d = Diagnostic::info(Code::ValueInfo, at, msg);
+    d.notes = lines;
+    Some(d)
+}
+
 impl Evaluator<'_> {
     fn facts(&mut self, c: &CurveValue, span: Span) -> Result<std::sync::Arc<CurveFacts>, Fail> {
-        let first_use = c.facts.get().is_none();
+        self.facts_used.push(c.name.clone());
         let Some(f) = c.facts() else {
             return Err(fail(
                 Code::BudgetExceeded,
@@ -24,20 +39,6 @@ impl Evaluator<'_> {
                 ),
             ));
         };
-        if !first_use {
-            return Ok(f);
-        }
-        if let Some(def) = self.curve_span(&c.name) {
-            let lines = f.summary();
-            let msg = if lines.is_empty() {
-                format!("`{}` is smooth (degree {})", c.name, f.degree)
-            } else {
-                format!("`{}` has {} singular point(s)", c.name, f.singular_count())
-            };
-            let mut d = Diagnostic::info(Code::ValueInfo, def, msg);
-            d.notes = lines;
-            self.out.diagnostics.push(d);
-        }
         Ok(f)
     }
 

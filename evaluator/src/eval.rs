@@ -74,26 +74,7 @@ pub fn evaluate(checked: &Checked, src: &str, mode: &Mode) -> Evaluation {
 
 /// [`evaluate`], stopping as soon as `cancel` is cancelled (from any thread).
 pub fn evaluate_cancellable(checked: &Checked, src: &str, mode: &Mode, cancel: &CancelToken) -> Evaluation {
-    let mut ev = Evaluator { checked, src, env: HashMap::new(), out: Evaluation::default() };
-    crate::limits::set(crate::limits::from_settings(&checked.settings));
-    for &i in &checked.order {
-        if cancel.is_cancelled() {
-            ev.out.cancelled = true;
-            break;
-        }
-        let _clock = crate::limits::start_statement(cancel);
-        // Deep code stops at a checkpoint by unwinding to here (see `limits::checkpoint`).
-        match crate::limits::catch(|| ev.statement(i, mode)) {
-            Ok(()) => {}
-            Err(Stop::OutOfTime) => ev.out_of_time(i),
-            Err(Stop::Cancelled) => {
-                ev.out.cancelled = true;
-                break;
-            }
-        }
-    }
-    kelp_lang::diag::sort(&mut ev.out.diagnostics);
-    ev.out
+    crate::incremental::Incremental::new().evaluate(checked, src, mode, cancel, &mut || false).0
 }
 
 pub(crate) struct Evaluator<'a> {
@@ -101,12 +82,13 @@ pub(crate) struct Evaluator<'a> {
     src: &'a str,
     env: HashMap<String, Valued>,
     pub(crate) out: Evaluation,
+    /// Curves whose facts a statement needed (their information diagnostic follows).
+    pub(crate) facts_used: Vec<String>,
 }
 
-impl Evaluator<'_> {
-    /// The span of a name at its definition.
-    pub(crate) fn curve_span(&self, name: &str) -> Option<Span> {
-        self.checked.symbols.iter().find(|s| s.name == name).map(|s| s.span)
+impl<'a> Evaluator<'a> {
+    pub(crate) fn new(checked: &'a Checked, src: &'a str) -> Self {
+        Evaluator { checked, src, env: HashMap::new(), out: Evaluation::default(), facts_used: Vec::new() }
     }
 
     fn text(&self, s: Span) -> &str {
@@ -127,7 +109,7 @@ impl Evaluator<'_> {
     }
 
     /// Statement `i` stopped at a checkpoint when its time ran out.
-    fn out_of_time(&mut self, i: usize) {
+    pub(crate) fn out_of_time(&mut self, i: usize) {
         let stmt = &self.checked.program.stmts[i];
         let (span, what) = match &stmt.kind {
             StmtKind::Let { name, .. } | StmtKind::Wave { name, .. } => (name.span, format!("`{}`", name.name)),
@@ -161,7 +143,7 @@ impl Evaluator<'_> {
         }
     }
 
-    fn statement(&mut self, i: usize, mode: &Mode) {
+    pub(crate) fn statement(&mut self, i: usize, mode: &Mode) {
         let stmt = &self.checked.program.stmts[i];
         match &stmt.kind {
             StmtKind::Curve { name, .. } => {
@@ -202,8 +184,12 @@ impl Evaluator<'_> {
     }
 
     fn define(&mut self, name: &Ident, v: Valued) {
-        self.out.values.push(NamedValue { name: name.name.clone(), span: name.span, value: v.clone() });
-        self.env.insert(name.name.clone(), v);
+        self.define_value(NamedValue { name: name.name.clone(), span: name.span, value: v });
+    }
+
+    pub(crate) fn define_value(&mut self, v: NamedValue) {
+        self.env.insert(v.name.clone(), v.value.clone());
+        self.out.values.push(v);
     }
 
     fn expect(&mut self, span: Span, claim: &Expr, within: Option<&Expr>) {
@@ -214,7 +200,7 @@ impl Evaluator<'_> {
             _ => self.expr(claim).and_then(|v| match v.value {
                 Value::Bool(b) => {
                     let why = v.reason.map(|r| format!(" ({r})")).unwrap_or_default();
-                    Ok((Some(b), format!("{claim_text} is {b}{why}")))
+                    Ok((Some(b), format!("{claim_text} is {b}{why}"), None))
                 }
                 other => Err(fail(
                     Code::ClaimNotBoolean,
@@ -224,8 +210,8 @@ impl Evaluator<'_> {
             }),
         };
         match outcome {
-            Ok((Some(true), detail)) => self.out.expectations.push(Expectation { span, passed: Some(true), detail }),
-            Ok((Some(false), detail)) => {
+            Ok((Some(true), detail, _)) => self.out.expectations.push(Expectation { span, passed: Some(true), detail }),
+            Ok((Some(false), detail, _)) => {
                 self.out.diagnostics.push(Diagnostic::error(
                     Code::ClaimFailed,
                     span,
@@ -233,13 +219,15 @@ impl Evaluator<'_> {
                 ));
                 self.out.expectations.push(Expectation { span, passed: Some(false), detail });
             }
-            Ok((None, detail)) => {
-                self.out.diagnostics.push(
-                    Diagnostic::error(Code::ClaimUndecided, span, format!("claim cannot be decided: {detail}"))
-                        .with_note(
+            Ok((None, detail, widen)) => {
+                let mut d = Diagnostic::error(Code::ClaimUndecided, span, format!("claim cannot be decided: {detail}"))
+                    .with_note(
                         "the error bound of the values is larger than the tolerance; raise `within` or the accuracy",
-                    ),
-                );
+                    );
+                if let Some(fix) = widen.map(|t| widen_fix(claim.span, within.map(|w| w.span), t)) {
+                    d = d.with_fix(fix);
+                }
+                self.out.diagnostics.push(d);
                 self.out.expectations.push(Expectation { span, passed: None, detail });
             }
             Err(f) => {
@@ -260,7 +248,7 @@ impl Evaluator<'_> {
         lhs: &Expr,
         rhs: &Expr,
         within: Option<&Expr>,
-    ) -> Result<(Option<bool>, String), Fail> {
+    ) -> Result<(Option<bool>, String, Option<f64>), Fail> {
         let l = self.expr(lhs)?;
         let r = self.expr(rhs)?;
         let tol = match within {
@@ -288,7 +276,9 @@ impl Evaluator<'_> {
         if let Some(d) = decision.distance {
             detail.push_str(&format!(" (difference {d:.3e}, tolerance {tol:.1e})"));
         }
-        Ok((decision.holds, detail))
+        // An undecided `==` holds for any tolerance above the distance plus the bounds.
+        let widen = decision.pass_at.filter(|t| op == BinOp::Eq && decision.holds.is_none() && t.is_finite());
+        Ok((decision.holds, detail, widen))
     }
 
     pub(crate) fn expr(&mut self, e: &Expr) -> R {
@@ -315,7 +305,10 @@ impl Evaluator<'_> {
             }
             ExprKind::Bool(b) => Ok(Valued::exact(Value::Bool(*b))),
             ExprKind::Str(s) => Ok(Valued::exact(Value::Str(s.clone()))),
-            ExprKind::Name(n) => self.env.get(n).cloned().ok_or_else(|| Fail::Dep(n.clone())),
+            ExprKind::Name(n) => {
+                self.env.get(n).cloned().or_else(|| crate::matrix_fn::constant(n)).ok_or_else(|| Fail::Dep(n.clone()))
+            }
+            ExprKind::Index { base, indices } => crate::matrix_fn::index(self, base, indices),
             ExprKind::Paren(inner) => self.expr(inner),
             ExprKind::Error => Err(fail(Code::EvalFailed, e.span, "this expression did not parse")),
             ExprKind::Point { coords, projective } => {
@@ -426,19 +419,8 @@ impl Evaluator<'_> {
                 };
                 Ok(Valued::exact(Value::Num(Num::int(n as i64))))
             }
-            "abs" | "re" | "im" => {
-                let v = first(self)?;
-                let Value::Num(n) = &v.value else {
-                    return Err(fail(Code::WrongKind, arg_span, format!("`{}` needs a number", func.name)));
-                };
-                let r = match func.name.as_str() {
-                    "abs" => n.abs(),
-                    "re" => n.re(),
-                    _ => n.im(),
-                };
-                let error_bound = crate::rounding::abs_error(&v, &r);
-                Ok(Valued { value: Value::Num(r), error_bound, ..v })
-            }
+            "abs" | "re" | "im" | "conj" | "exp" | "log" | "sqrt" | "det" | "inverse" | "transpose" | "trace"
+            | "identity" | "zeros" => crate::matrix_fn::call(self, span, func, &positional),
             "is_riemann" => {
                 let v = first(self)?;
                 let Value::Matrix(m) = &v.value else {
@@ -456,6 +438,9 @@ impl Evaluator<'_> {
             }
             "theta" => self.theta_call(span, args),
             "tau" => self.tau_call(span, args),
+            "a_periods" | "b_periods" | "differentials" => self.periods_call(span, &func.name, args),
+            "even_thetas" | "hyperelliptic" => self.jacobian_call(span, &func.name, args),
+            "siegel_transform" | "siegel_reduced" | "symplectic_act" => self.symplectic_call(span, &func.name, args),
             "soliton" | "rational" | "theta_wave" | "krichever" | "shallow_water" => {
                 self.wave_call(span, &func.name, args)
             }
@@ -524,17 +509,35 @@ struct Decision {
     holds: Option<bool>,
     /// For numeric comparisons: the largest entrywise difference.
     distance: Option<f64>,
+    /// For numeric `==`: the distance plus every error bound, above which it holds.
+    pass_at: Option<f64>,
+}
+
+/// K702's repair: a tolerance of one significant digit at or above `pass_at`, replacing
+/// the claim's `within` or added after the claim.
+fn widen_fix(claim: Span, within: Option<Span>, pass_at: f64) -> kelp_lang::Fix {
+    // One digit, rounded up; the margin keeps the decimal's own rounding on the safe side.
+    let x = pass_at * (1.0 + 1e-9);
+    let e = x.log10().floor() as i32;
+    let digit = (x / 10f64.powi(e)).ceil();
+    let (digit, e) = if digit >= 10.0 { (1.0, e + 1) } else { (digit.max(1.0), e) };
+    let tol = format!("{digit}e{e}");
+    let title = format!("widen the tolerance to {tol} (difference plus error bounds)");
+    match within {
+        Some(w) => kelp_lang::Fix::replace(title, w, tol),
+        None => kelp_lang::Fix::replace(title, Span::new(claim.end, claim.end), format!(" within {tol}")),
+    }
 }
 
 /// Exact values compare exactly; numerical ones within `tol`, decided only when the
 /// error bounds cannot change the answer.
 fn compare(op: BinOp, l: &Valued, r: &Valued, tol: f64, span: Span) -> Result<Decision, Fail> {
     let err = l.error_bound + r.error_bound;
-    let negate = |d: Decision| Decision { holds: d.holds.map(|b| !b), distance: d.distance };
+    let negate = |d: Decision| Decision { holds: d.holds.map(|b| !b), ..d };
     match op {
         BinOp::Eq | BinOp::Ne => {
             let d = match (&l.value, &r.value) {
-                (Value::Bool(a), Value::Bool(b)) => Decision { holds: Some(a == b), distance: None },
+                (Value::Bool(a), Value::Bool(b)) => Decision { holds: Some(a == b), distance: None, pass_at: None },
                 (a, b) => {
                     let (Some((sa, ea)), Some((sb, eb))) = (entries(a), entries(b)) else {
                         return Err(fail(
@@ -547,7 +550,7 @@ fn compare(op: BinOp, l: &Valued, r: &Valued, tol: f64, span: Span) -> Result<De
                         return Err(fail(Code::ShapeMismatch, span, "the two sides have different shapes"));
                     }
                     if ea.iter().chain(eb.iter()).all(|n| n.is_exact()) {
-                        Decision { holds: Some(ea == eb), distance: None }
+                        Decision { holds: Some(ea == eb), distance: None, pass_at: None }
                     } else {
                         // Each entry's distance is itself computed in floating point.
                         let (mut dist, mut slack) = (0.0f64, 0.0f64);
@@ -564,7 +567,7 @@ fn compare(op: BinOp, l: &Valued, r: &Valued, tol: f64, span: Span) -> Result<De
                         } else {
                             None
                         };
-                        Decision { holds, distance: Some(dist) }
+                        Decision { holds, distance: Some(dist), pass_at: Some(dist + err) }
                     }
                 }
             };
@@ -608,7 +611,7 @@ fn compare(op: BinOp, l: &Valued, r: &Valued, tol: f64, span: Span) -> Result<De
                     }
                 }
             };
-            Ok(Decision { holds, distance: None })
+            Ok(Decision { holds, distance: None, pass_at: None })
         }
     }
 }

@@ -129,6 +129,18 @@ pub fn diagnostic_json(idx: &LineIndex, d: &Diagnostic) -> J {
     if !d.notes.is_empty() {
         o["notes"] = json!(d.notes);
     }
+    if !d.fixes.is_empty() {
+        o["fixes"] = J::Array(
+            d.fixes
+                .iter()
+                .map(|f| {
+                    let edits: Vec<J> =
+                        f.edits.iter().map(|(s, t)| json!({"range": range(idx, *s), "text": t})).collect();
+                    json!({"title": f.title, "edits": edits})
+                })
+                .collect(),
+        );
+    }
     if !d.labels.is_empty() {
         o["related"] =
             J::Array(d.labels.iter().map(|l| json!({"message": l.message, "range": range(idx, l.span)})).collect());
@@ -138,7 +150,8 @@ pub fn diagnostic_json(idx: &LineIndex, d: &Diagnostic) -> J {
 
 /// One file's report. `diagnostics` are the checker's and the evaluator's together.
 pub fn file_report(path: &str, src: &str, diagnostics: &[Diagnostic], eval: &Evaluation) -> J {
-    let idx = LineIndex::new(src);
+    // Positions as an editor shows the file: a byte-order mark is no column.
+    let idx = LineIndex::of_file(src);
     json!({
         "file": path,
         "diagnostics": diagnostics.iter().map(|d| diagnostic_json(&idx, d)).collect::<Vec<_>>(),

@@ -3,16 +3,22 @@
 //! theta functions, Riemann matrices, KP waves and outputs.
 
 pub mod algebra;
+mod bounded;
 pub mod curve_fn;
 pub mod eval;
+pub mod incremental;
+mod jacobian_fn;
 pub mod json;
 pub mod limits;
 pub mod linalg;
+mod matrix_bound;
+mod matrix_fn;
 mod memo;
 pub mod num;
 pub mod output;
 pub mod periods;
 pub mod rounding;
+mod symplectic_fn;
 mod tau_fn;
 pub mod theta;
 mod theta_fn;
@@ -21,5 +27,6 @@ mod wave_fn;
 pub mod waves;
 
 pub use eval::{evaluate, evaluate_cancellable, Evaluation, Expectation, Mode, NamedValue};
+pub use incremental::{statement_keys, Incremental, Key, Reuse};
 pub use limits::CancelToken;
 pub use value::{Value, Valued};

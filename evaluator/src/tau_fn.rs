@@ -44,8 +44,37 @@ pub fn summary(r: &RiemannMatrix, equation: &str) -> String {
     )
 }
 
+/// Entrywise complex matrix as a language value.
+fn matrix_value(m: &nalgebra::DMatrix<num_complex::Complex64>) -> Value {
+    Value::Matrix(m.row_iter().map(|row| row.iter().map(|v| Num::Complex(*v)).collect()).collect())
+}
+
 impl Evaluator<'_> {
-    pub(crate) fn tau_call(&mut self, span: Span, args: &[Arg]) -> Result<Valued, Fail> {
+    /// `a_periods(C)`, `b_periods(C)` and `differentials(C)`: the periods behind `tau`, in the
+    /// cycles `tau(C, reduce = ...)` uses (after Siegel's reduction the cycles change by the
+    /// reducing symplectic matrix, and so do A and B).
+    pub(crate) fn periods_call(&mut self, span: Span, which: &str, args: &[Arg]) -> Result<Valued, Fail> {
+        let (c, reduce, cspan) = self.curve_and_reduce(span, which, args)?;
+        let r = self.riemann_matrix(&c, reduce, cspan)?;
+        let p = &r.periods;
+        if which == "differentials" {
+            let forms = p.forms.iter().map(|f| Value::Str(f.clone())).collect();
+            return Ok(Valued::exact(Value::List(forms)));
+        }
+        // In the cycles tau refers to (`periods::change_cycles` after a reduction).
+        let basis = &r.basis;
+        let (a, b, a_err, b_err) = (basis.a.clone(), basis.b.clone(), basis.a_error, basis.b_error);
+        let (m, err, cycles) = if which == "a_periods" { (a, a_err, "a") } else { (b, b_err, "b") };
+        let how = if p.plane.is_some() { "estimated error (two quadrature rules)" } else { "error <=" };
+        let reason = format!(
+            "{cycles}-periods of {} over the cycles of {} tau; {how} {err:.1e}",
+            p.forms.join(", "),
+            if r.reduced.is_some() { "the Siegel-reduced" } else { "the unreduced" }
+        );
+        Ok(Valued { value: matrix_value(&m), error_bound: err, reason: Some(reason) })
+    }
+
+    fn curve_and_reduce(&mut self, span: Span, what: &str, args: &[Arg]) -> Result<(Rc<CurveValue>, bool, Span), Fail> {
         let mut curve = None;
         let mut reduce = true;
         for a in args {
@@ -58,11 +87,16 @@ impl Evaluator<'_> {
                 _ => {}
             }
         }
-        let ce = curve.ok_or_else(|| fail(Code::MissingArgument, span, "`tau` needs a curve"))?;
+        let ce = curve.ok_or_else(|| fail(Code::MissingArgument, span, format!("`{what}` needs a curve")))?;
         let Value::Curve(c) = self.expr(ce)?.value else {
-            return Err(fail(Code::WrongKind, ce.span, "`tau` needs a curve"));
+            return Err(fail(Code::WrongKind, ce.span, format!("`{what}` needs a curve")));
         };
-        let r = self.riemann_matrix(&c, reduce, ce.span)?;
+        Ok((c, reduce, ce.span))
+    }
+
+    pub(crate) fn tau_call(&mut self, span: Span, args: &[Arg]) -> Result<Valued, Fail> {
+        let (c, reduce, cspan) = self.curve_and_reduce(span, "tau", args)?;
+        let r = self.riemann_matrix(&c, reduce, cspan)?;
         let eq = superelliptic_route(&c.equation.poly, c.equation.projective)
             .map(|s| s.describe())
             .unwrap_or_else(|| format!("{} = 0 (by the covering x: curve -> P^1)", c.equation.poly));

@@ -90,7 +90,25 @@ impl Evaluator<'_> {
             return Err(fail(Code::ShapeMismatch, te.span, "`theta` needs a square matrix"));
         }
         let tm = nalgebra::DMatrix::from_fn(n, n, |i, j| t[i][j]);
-        let tol = self.checked.settings.tolerance() + tv.error_bound;
+        self.theta_bounded(&tm, tv.error_bound, &z, zv.error_bound, ch.as_ref(), &along, te.span, span)
+    }
+
+    /// theta[ch](z | T) (with derivatives `along`) and a bound covering the sum's own error
+    /// and T's and z's errors (`t_err`, `z_err`, entrywise).
+    #[allow(clippy::too_many_arguments)]
+    pub(crate) fn theta_bounded(
+        &self,
+        tm: &nalgebra::DMatrix<C64>,
+        t_err: f64,
+        z: &[C64],
+        z_err: f64,
+        ch: Option<&Characteristic>,
+        along: &[Vec<C64>],
+        tspan: Span,
+        span: Span,
+    ) -> Result<Valued, Fail> {
+        let g = tm.nrows();
+        let tol = self.checked.settings.tolerance() + t_err;
         // Aim well below both the requested accuracy and the claim tolerance, so that a
         // claim `== ... within tolerance` is decided rather than left open; the extra
         // lattice points cost little (the radius grows like sqrt(log(1/accuracy))).
@@ -99,18 +117,16 @@ impl Evaluator<'_> {
         if along.is_empty() {
             // Small Im tau: Siegel's reduction applied to the value, which carries the
             // inputs' errors itself.
-            let transformed =
-                crate::theta::value_with_inputs(&tm, &z, ch.as_ref(), tv.error_bound, zv.error_bound, accuracy);
-            if let Some(v) = transformed {
-                return self.theta_result(v.map_err(|e| theta_error(e, te.span))?, 0.0, span);
+            if let Some(v) = crate::theta::value_with_inputs(tm, z, ch, t_err, z_err, accuracy) {
+                return self.theta_result(v.map_err(|e| theta_error(e, tspan))?, 0.0, span);
             }
         }
-        let ctx = ThetaContext::new(&tm, tol).map_err(|e| theta_error(e, te.span))?;
+        let ctx = ThetaContext::new(tm, tol).map_err(|e| theta_error(e, tspan))?;
         // One pass computes the value and, when T or z carry errors, the derivatives that
         // propagate them: |d theta / d z_j| for z, |d theta / d tau_jk| = |d^2 theta /
         // dz_j dz_k| / (2 pi (1 + delta_jk)) for T (heat equation).
         let p = along.len();
-        let mut dirs = along.clone();
+        let mut dirs = along.to_vec();
         for j in 0..g {
             let mut e = vec![C64::new(0.0, 0.0); g];
             e[j] = C64::new(1.0, 0.0);
@@ -118,7 +134,7 @@ impl Evaluator<'_> {
         }
         let base = vec![1u32; p];
         let mut monos = vec![[base.clone(), vec![0; g]].concat()];
-        if zv.error_bound > 0.0 {
+        if z_err > 0.0 {
             for j in 0..g {
                 let mut m = [base.clone(), vec![0; g]].concat();
                 m[p + j] += 1;
@@ -126,7 +142,7 @@ impl Evaluator<'_> {
             }
         }
         let first_tau = monos.len();
-        if tv.error_bound > 0.0 {
+        if t_err > 0.0 {
             for j in 0..g {
                 for k in j..g {
                     let mut m = [base.clone(), vec![0; g]].concat();
@@ -136,20 +152,20 @@ impl Evaluator<'_> {
                 }
             }
         }
-        let (vals, _) = ctx.sums(&z, ch.as_ref(), &dirs, &monos, accuracy).map_err(|e| theta_error(e, span))?;
+        let (vals, _) = ctx.sums(z, ch, &dirs, &monos, accuracy).map_err(|e| theta_error(e, span))?;
         let v = vals[0];
         let scale = v.log_factor.exp();
         let mut err = 0.0;
-        if zv.error_bound > 0.0 {
-            err += vals[1..first_tau].iter().map(|d| (d.value.norm() + d.error) * scale).sum::<f64>() * zv.error_bound;
+        if z_err > 0.0 {
+            err += vals[1..first_tau].iter().map(|d| (d.value.norm() + d.error) * scale).sum::<f64>() * z_err;
         }
-        if tv.error_bound > 0.0 {
+        if t_err > 0.0 {
             let mut idx = first_tau;
             for j in 0..g {
                 for k in j..g {
                     let d = vals[idx];
                     let f = if j == k { 4.0 * PI } else { 2.0 * PI };
-                    err += (d.value.norm() + d.error) * scale / f * tv.error_bound;
+                    err += (d.value.norm() + d.error) * scale / f * t_err;
                     idx += 1;
                 }
             }

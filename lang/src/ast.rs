@@ -109,6 +109,11 @@ pub enum ExprKind {
         projective: bool,
     },
     Paren(Box<Expr>),
+    /// `v[i]`, `M[i, j]`, `M[i]` (a row): 1-based indices.
+    Index {
+        base: Box<Expr>,
+        indices: Vec<Expr>,
+    },
     Unary {
         op: UnOp,
         operand: Box<Expr>,
@@ -241,6 +246,10 @@ impl Expr {
             }
             ExprKind::List(items) | ExprKind::Point { coords: items, .. } => items.iter().for_each(|e| e.walk(f)),
             ExprKind::Paren(e) | ExprKind::Unary { operand: e, .. } => e.walk(f),
+            ExprKind::Index { base, indices } => {
+                base.walk(f);
+                indices.iter().for_each(|e| e.walk(f));
+            }
             ExprKind::Binary { lhs, rhs, .. } => {
                 lhs.walk(f);
                 rhs.walk(f);

@@ -4,7 +4,7 @@
 
 use crate::ast::*;
 use crate::builtins::{self, Builtin, ParamKind, RegionUse, Yields, SETTINGS};
-use crate::diag::{Code, Diagnostic};
+use crate::diag::{Code, Diagnostic, Fix};
 use crate::number::parse_exact;
 use crate::parser::parse;
 use crate::poly::Poly;
@@ -13,6 +13,9 @@ use crate::suggest::closest;
 use num_rational::BigRational;
 use num_traits::{Signed, ToPrimitive, Zero};
 use std::collections::HashMap;
+
+#[path = "check_basics.rs"]
+mod basics;
 
 /// Curves above this degree are refused (their expansion alone would be costly).
 pub const MAX_CURVE_DEGREE: u32 = 64;
@@ -254,6 +257,11 @@ impl Checker {
             ) else {
                 continue;
             };
+            if let Some(d) = basics::reserved(name) {
+                self.diags.push(d);
+                self.broken[i] = true;
+                continue;
+            }
             if let Some(&prev) = self.by_name.get(&name.name) {
                 let prev_span = self.symbols[prev].span;
                 let d =
@@ -530,7 +538,10 @@ impl Checker {
         if builtins::setting_named(&name.name).is_none() {
             let d = self.error(Code::UnknownSetting, name.span, format!("there is no setting `{}`", name.name));
             match closest(&name.name, SETTINGS.iter().map(|s| s.name)) {
-                Some(s) => d.notes.push(format!("did you mean `{s}`?")),
+                Some(s) => {
+                    d.notes.push(format!("did you mean `{s}`?"));
+                    d.fixes.push(rename_fix(name.span, s));
+                }
                 None => d.notes.push(format!(
                     "the settings are {}",
                     SETTINGS.iter().map(|s| format!("`{}`", s.name)).collect::<Vec<_>>().join(", ")
@@ -612,6 +623,7 @@ impl Checker {
                 );
                 if let Some(s) = closest(name, AXIS_NAMES) {
                     d.notes.push(format!("did you mean `{s}`?"));
+                    d.fixes.push(rename_fix(ax.name.span, s));
                 }
             } else if let Some(prev) = seen.get(name) {
                 let d = Diagnostic::error(Code::DuplicateAxis, ax.name.span, format!("axis `{name}` is given twice"))
@@ -658,9 +670,12 @@ impl Checker {
             self.references.push(Reference { name: name.to_string(), span, symbol: k });
             return self.symbols[k].kind;
         }
+        if let Some(k) = basics::constant_kind(name) {
+            return k;
+        }
         let mut d = Diagnostic::error(Code::UndefinedName, span, format!("`{name}` is not defined"));
         if let Some(s) = closest(name, self.symbols.iter().map(|s| s.name.as_str())) {
-            d = d.with_note(format!("did you mean `{s}`?"));
+            d = d.with_note(format!("did you mean `{s}`?")).with_fix(rename_fix(span, s));
         } else if ["x", "y", "z"].contains(&name) {
             d = d.with_note("x, y and z are variables only inside a curve equation");
         }
@@ -714,7 +729,8 @@ impl Checker {
                 let (l, r) = (self.infer(lhs), self.infer(rhs));
                 self.infer_binary(*op, e.span, (l, lhs.span), (r, rhs.span))
             }
-            ExprKind::Call { func, args } => self.infer_call(func, args),
+            ExprKind::Call { func, args } => self.infer_call(e.span, func, args),
+            ExprKind::Index { base, indices } => self.infer_index(base, indices),
         }
     }
 
@@ -843,12 +859,20 @@ impl Checker {
         }
     }
 
-    fn infer_call(&mut self, func: &Ident, args: &[Arg]) -> Kind {
+    fn placeholder(&self, kind: ParamKind, given: &[Option<(Kind, Span)>]) -> String {
+        let size = given.iter().flatten().find_map(|(k, _)| match k {
+            Kind::Matrix(Some((r, _))) => Some(*r),
+            _ => None,
+        });
+        placeholder(kind, &self.symbols, size)
+    }
+
+    fn infer_call(&mut self, call: Span, func: &Ident, args: &[Arg]) -> Kind {
         let Some(b) = builtins::lookup(&func.name) else {
             let mut d =
                 Diagnostic::error(Code::UnknownFunction, func.span, format!("there is no function `{}`", func.name));
             if let Some(s) = closest(&func.name, builtins::BUILTINS.iter().map(|b| b.name)) {
-                d = d.with_note(format!("did you mean `{s}`?"));
+                d = d.with_note(format!("did you mean `{s}`?")).with_fix(rename_fix(func.span, s));
             }
             self.diags.push(d);
             for a in args {
@@ -923,7 +947,9 @@ impl Checker {
                                 )
                             };
                             d = match closest(&name.name, cands.iter().copied()) {
-                                Some(s) => d.with_note(format!("did you mean `{s}`?")),
+                                Some(s) => {
+                                    d.with_note(format!("did you mean `{s}`?")).with_fix(rename_fix(name.span, s))
+                                }
                                 None => d.with_note(format!("usage: {}", b.signature)),
                             };
                             self.diags.push(d);
@@ -943,11 +969,18 @@ impl Checker {
         }
         if takes_region {
             if axes.is_empty() && b.region == RegionUse::Required {
+                let region = "x in -4..4, y in -4..4, t = 0";
+                let fix = Fix {
+                    title: format!("add the region `{region}`"),
+                    edits: vec![insert_argument(call, args, None, region)],
+                };
                 self.error(
                     Code::MissingArgument,
                     func.span,
                     format!("`{}` needs a region, e.g. `x in -4..4, y in -4..4, t = 0`", b.name),
-                );
+                )
+                .fixes
+                .push(fix);
             }
             self.check_region(&axes);
         }
@@ -960,9 +993,17 @@ impl Checker {
                     } else {
                         format!("`{} = ...`", p.name)
                     };
-                    self.error(Code::MissingArgument, func.span, format!("`{}` needs {how}", b.name))
-                        .notes
-                        .push(format!("usage: {}", b.signature));
+                    let value = self.placeholder(p.kind, &given);
+                    let fix = if j < b.positional.len() {
+                        let edit = insert_argument(call, args, Some(j), &value);
+                        Fix { title: format!("add `{}` as `{value}`", p.name), edits: vec![edit] }
+                    } else {
+                        let text = format!("{} = {value}", p.name);
+                        Fix { title: format!("add `{text}`"), edits: vec![insert_argument(call, args, None, &text)] }
+                    };
+                    let d = self.error(Code::MissingArgument, func.span, format!("`{}` needs {how}", b.name));
+                    d.notes.push(format!("usage: {}", b.signature));
+                    d.fixes.push(fix);
                 }
                 Some((k, s)) if !accepts(p.kind, k) => {
                     self.error(
@@ -981,12 +1022,16 @@ impl Checker {
             }
         }
         self.check_shapes(b, &given);
+        if let Some(k) = basics::result_kind(b, args, &given) {
+            return k;
+        }
         match b.yields {
             Yields::Number => Kind::Number,
             Yields::Bool => Kind::Bool,
             Yields::List => Kind::List,
             Yields::Matrix => Kind::Matrix(None),
             Yields::Wave => Kind::Wave,
+            Yields::SameKind => Kind::Unknown,
         }
     }
 
@@ -1021,6 +1066,9 @@ impl Checker {
         match b.name {
             "is_riemann" => {
                 square(self, "matrix");
+            }
+            "det" | "inverse" | "trace" => {
+                square(self, "M");
             }
             "theta" => {
                 if let Some(g) = square(self, "tau") {
@@ -1076,6 +1124,67 @@ impl Checker {
     }
 }
 
+/// Text for an argument of `kind` that parses and, where `symbols` allow, checks: a curve
+/// or wave the file defines, a vector of the length `size` of the matrix beside it.
+pub fn placeholder(kind: ParamKind, symbols: &[Symbol], size: Option<usize>) -> String {
+    let named = |k: Kind| symbols.iter().find(|s| s.kind == k).map(|s| s.name.clone());
+    let zeros = |n: usize, z: &str| vec![z; n].join(", ");
+    match kind {
+        ParamKind::Number | ParamKind::Numeric => "1".into(),
+        ParamKind::Bool => "true".into(),
+        ParamKind::Curve => named(Kind::Curve).unwrap_or_else(|| "C".into()),
+        ParamKind::CurveOrMatrix => named(Kind::Curve).unwrap_or_else(|| "[[1i]]".into()),
+        ParamKind::Wave => named(Kind::Wave).unwrap_or_else(|| "W".into()),
+        ParamKind::Matrix => "[[1i]]".into(),
+        ParamKind::Vector | ParamKind::Collection => format!("[{}]", zeros(size.unwrap_or(1), "0")),
+        ParamKind::VectorList => format!("[[{}]]", zeros(size.unwrap_or(1), "1")),
+        ParamKind::Point => "(0, 0)".into(),
+        ParamKind::Characteristic => {
+            let row = format!("[{}]", zeros(size.unwrap_or(1), "0"));
+            format!("[{row}, {row}]")
+        }
+    }
+}
+
+/// Replaces a misspelt name by the suggested one.
+fn rename_fix(span: Span, to: &str) -> Fix {
+    Fix::replace(format!("change to `{to}`"), span, to)
+}
+
+fn arg_span(a: &Arg) -> Span {
+    match a {
+        Arg::Positional(e) => e.span,
+        Arg::Keyword { name, value } => name.span.join(value.span),
+        Arg::Axis(ax) => ax.span,
+    }
+}
+
+/// The edit that adds `text` to the call spanning `call` (which ends with `)`): the
+/// positional argument number `positional` goes after the positional ones before it,
+/// anything else after the last argument.
+fn insert_argument(call: Span, args: &[Arg], positional: Option<usize>, text: &str) -> (Span, String) {
+    let before_close = Span::new(call.end.saturating_sub(1), call.end.saturating_sub(1));
+    let after = match positional {
+        Some(j) => {
+            let earlier: Vec<&Arg> = args.iter().filter(|a| matches!(a, Arg::Positional(_))).take(j).collect();
+            match (earlier.last(), args.first()) {
+                (Some(a), _) => Some(arg_span(a).end),
+                // No positional argument before it: it goes first.
+                (None, Some(first)) => {
+                    let at = arg_span(first).start;
+                    return (Span::new(at, at), format!("{text}, "));
+                }
+                (None, None) => None,
+            }
+        }
+        None => args.last().map(|a| arg_span(a).end),
+    };
+    match after {
+        Some(at) => (Span::new(at, at), format!(", {text}")),
+        None => (before_close, text.to_string()),
+    }
+}
+
 fn too_high(span: Span) -> Diagnostic {
     Diagnostic::error(
         Code::DegreeTooHigh,
@@ -1100,6 +1209,7 @@ fn accepts(p: ParamKind, k: Kind) -> bool {
         ParamKind::Point => matches!(k, Point { .. }),
         ParamKind::Bool => k == Bool,
         ParamKind::CurveOrMatrix => matches!(k, Curve | Matrix(_)),
+        ParamKind::Numeric => matches!(k, Number | Vector(_) | Matrix(_)),
     }
 }
 
@@ -1116,6 +1226,7 @@ fn describe_param(p: ParamKind) -> &'static str {
         ParamKind::Characteristic => "characteristics `[a, b]`",
         ParamKind::Bool => "true or false",
         ParamKind::CurveOrMatrix => "a curve or a 1 x 1 matrix",
+        ParamKind::Numeric => "a number, vector or matrix",
     }
 }
 

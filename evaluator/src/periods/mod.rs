@@ -46,6 +46,37 @@ pub fn general_memo(
     )
 }
 
+/// Period matrices over one homology basis, with entrywise bounds.
+#[derive(Clone, Debug)]
+pub struct Basis {
+    pub a: DMatrix<C64>,
+    pub b: DMatrix<C64>,
+    pub a_error: f64,
+    pub b_error: f64,
+}
+
+/// The periods over the cycles changed by Gamma = [[a, b], [c, d]] in Sp(2g, Z):
+/// A' = A d^T + B c^T and B' = A b^T + B a^T (from tau' = (c tau + d)^-T (a tau + b)^T and
+/// A tau = B). Each entry's bound: the entries' bounds through the integer blocks' row
+/// sums, plus the products' rounding (2g terms of at most max|A|, max|B| times an integer;
+/// Higham, *Accuracy and Stability of Numerical Algorithms*, ch. 3).
+pub fn change_cycles(p: &Periods, gamma: &DMatrix<i64>) -> Basis {
+    let g = p.genus;
+    let blk = |r: usize, c: usize| gamma.view((r * g, c * g), (g, g)).map(|v| C64::new(v as f64, 0.0));
+    let (ga, gb, gc, gd) = (blk(0, 0), blk(0, 1), blk(1, 0), blk(1, 1));
+    let max = |m: &DMatrix<C64>| m.iter().map(|v| v.norm()).fold(0.0, f64::max);
+    let round = 4.0 * (2 * g + 1) as f64 * f64::EPSILON * max(&p.a).max(max(&p.b));
+    let error = |x: &DMatrix<C64>, y: &DMatrix<C64>| {
+        p.a_error * norm_inf(x) + p.b_error * norm_inf(y) + round * (norm_inf(x) + norm_inf(y))
+    };
+    Basis {
+        a: &p.a * gd.transpose() + &p.b * gc.transpose(),
+        b: &p.a * gb.transpose() + &p.b * ga.transpose(),
+        a_error: error(&gd, &gc),
+        b_error: error(&gb, &ga),
+    }
+}
+
 #[derive(Clone, Debug)]
 pub struct RiemannMatrix {
     pub tau: DMatrix<C64>,
@@ -55,9 +86,9 @@ pub struct RiemannMatrix {
     pub min_eig_im: f64,
     /// Whether tau was Siegel-reduced (and by which element of Sp(2g, Z)).
     pub reduced: Option<DMatrix<i64>>,
-    /// The a-periods in the basis tau refers to (reduced or not): the normalized
-    /// differentials are A^-1 omega with this A.
-    pub a_basis: DMatrix<C64>,
+    /// The periods in the basis tau refers to (reduced or not): tau = A^-1 B, and the
+    /// normalized differentials are A^-1 omega with this A.
+    pub basis: Basis,
     pub periods: Periods,
 }
 
@@ -109,7 +140,7 @@ pub fn riemann_matrix(p: Periods, reduce: bool) -> Result<RiemannMatrix, PeriodE
         )));
     }
     let mut reduced = None;
-    let mut a_basis = p.a.clone();
+    let mut basis = Basis { a: p.a.clone(), b: p.b.clone(), a_error: p.a_error, b_error: p.b_error };
     if reduce {
         if let Ok(s) = crate::theta::siegel::siegel_reduce(&tau) {
             // Gamma = [[a, b], [c, d]] changes the cycles: the new periods are
@@ -117,27 +148,24 @@ pub fn riemann_matrix(p: Periods, reduce: bool) -> Result<RiemannMatrix, PeriodE
             // and A tau = B), so the
             // reduced matrix is A'^-1 B' with errors propagated through the new, usually
             // better conditioned, A'.
-            let blk = |r: usize, c: usize| s.gamma.view((r * g, c * g), (g, g)).map(|v| C64::new(v as f64, 0.0));
-            let rows =
-                |m: &DMatrix<C64>| m.row_iter().map(|r| r.iter().map(|v| v.norm()).sum::<f64>()).fold(0.0, f64::max);
-            let (ga, gb, gc, gd) = (blk(0, 0), blk(0, 1), blk(1, 0), blk(1, 1));
-            let a2 = &p.a * gd.transpose() + &p.b * gc.transpose();
-            let b2 = &p.a * gb.transpose() + &p.b * ga.transpose();
-            let a2_err = p.a_error * rows(&gd) + p.b_error * rows(&gc);
-            let b2_err = p.a_error * rows(&gb) + p.b_error * rows(&ga);
+            let changed = change_cycles(&p, &s.gamma);
+            let (gc, gd) = (
+                s.gamma.view((g, 0), (g, g)).map(|v| C64::new(v as f64, 0.0)),
+                s.gamma.view((g, g), (g, g)).map(|v| C64::new(v as f64, 0.0)),
+            );
             // A second valid bound: tau' - tau_exact' = X^T (tau - tau_exact) X with
             // X = (c tau + d)^-1, and |(X^T E X)_ij| <= max|E| ||X||_1^2. The smaller wins.
             let x_norm = (&gc * &tau + &gd).try_inverse().map_or(f64::INFINITY, |x| norm_1(&x).powi(2));
             let through_x = error * x_norm;
-            if let Some((raw2, err2)) = quotient(&a2, &b2, a2_err, b2_err) {
+            if let Some((raw2, err2)) = quotient(&changed.a, &changed.b, changed.a_error, changed.b_error) {
                 tau = (&raw2 + raw2.transpose()) * C64::new(0.5, 0.0);
                 // The validation difference is not in a_error, b_error: it maps like any error of tau.
                 error = err2.min(through_x).max(asymmetry(&raw2)).max(symmetry_defect).max(p.validation * x_norm);
                 min_eig_im = min_eig(&tau);
                 reduced = Some(s.gamma);
-                a_basis = a2;
+                basis = changed;
             }
         }
     }
-    Ok(RiemannMatrix { tau, error, symmetry_defect, min_eig_im, reduced, a_basis, periods: p })
+    Ok(RiemannMatrix { tau, error, symmetry_defect, min_eig_im, reduced, basis, periods: p })
 }

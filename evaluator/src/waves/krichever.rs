@@ -45,7 +45,7 @@ fn coefficients(s: &Superelliptic) -> Vec<C64> {
 /// lam^2) with the a-periods.
 fn normalize(r: &RiemannMatrix, alpha: DMatrix<C64>, local_parameter: String) -> Result<KricheverData, String> {
     let g = alpha.nrows();
-    let ainv = r.a_basis.clone().try_inverse().ok_or("the a-period matrix is singular")?;
+    let ainv = r.basis.a.clone().try_inverse().ok_or("the a-period matrix is singular")?;
     let n = ainv * alpha;
     let col = |k: usize| (0..g).map(|j| n[(j, k)]).collect::<Vec<_>>();
     Ok(KricheverData { u: col(0), v: col(1), w: col(2), local_parameter })
