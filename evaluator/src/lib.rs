@@ -2,6 +2,7 @@
 //! tolerances and error bounds, and (as the mathematics lands) exact curve algebra,
 //! theta functions, Riemann matrices, KP waves and outputs.
 
+mod abel_fn;
 pub mod algebra;
 mod bounded;
 pub mod curve_fn;

@@ -74,7 +74,12 @@ impl Evaluator<'_> {
         Ok(Valued { value: matrix_value(&m), error_bound: err, reason: Some(reason) })
     }
 
-    fn curve_and_reduce(&mut self, span: Span, what: &str, args: &[Arg]) -> Result<(Rc<CurveValue>, bool, Span), Fail> {
+    pub(crate) fn curve_and_reduce(
+        &mut self,
+        span: Span,
+        what: &str,
+        args: &[Arg],
+    ) -> Result<(Rc<CurveValue>, bool, Span), Fail> {
         let mut curve = None;
         let mut reduce = true;
         for a in args {

@@ -85,7 +85,7 @@ impl Region {
 }
 
 impl Evaluator<'_> {
-    fn keyword<'e>(args: &'e [Arg], name: &str) -> Option<&'e Expr> {
+    pub(crate) fn keyword<'e>(args: &'e [Arg], name: &str) -> Option<&'e Expr> {
         args.iter().find_map(|a| match a {
             Arg::Keyword { name: n, value } if n.name == name => Some(value),
             _ => None,

@@ -16,6 +16,8 @@ pub enum ParamKind {
     Collection,
     /// A point `(x, y)` or `(x : y : z)`.
     Point,
+    /// A point, or a list of points (a divisor, with `counts`).
+    Points,
     /// Characteristics `[a, b]`, a 2 x g matrix.
     Characteristic,
     /// `true` or `false`.
@@ -48,6 +50,7 @@ pub enum Yields {
     Bool,
     List,
     Matrix,
+    Vector,
     Wave,
     /// The kind of the first argument (entrywise functions); the checker also derives
     /// shapes of `transpose`, `identity`, `zeros` and indexing.
@@ -206,6 +209,33 @@ pub const BUILTINS: &[Builtin] = &[
         yields: Yields::Matrix,
         signature: "symplectic_act(G, T)",
         summary: "(A T + B)(C T + D)^-1 for an integer symplectic G = [[A, B], [C, D]] (checked exactly; the failing relation is named), with a bound.",
+    },
+    Builtin {
+        name: "abel_jacobi",
+        positional: &[p("curve", K::Curve), p("points", K::Points)],
+        keywords: &[opt("counts", K::Vector), opt("from", K::Point), opt("reduce", K::Bool)],
+        region: RegionUse::None,
+        yields: Yields::Vector,
+        signature: "abel_jacobi(C, D, counts = [n1, n2, ...], from = P0, reduce = true)",
+        summary: "The Abel–Jacobi image of a point or of the divisor n1 P1 + n2 P2 + ... (counts default to 1) from the base point P0, in the normalised coordinates of `tau(C, reduce = ...)` (lattice Z^g + T Z^g), reduced to a + T b with every a_k, b_k in [-1/2, 1/2), with a bound. Curves y^m = f(x) so far.",
+    },
+    Builtin {
+        name: "riemann_constant",
+        positional: &[p("curve", K::Curve)],
+        keywords: &[opt("from", K::Point), opt("reduce", K::Bool)],
+        region: RegionUse::None,
+        yields: Yields::Vector,
+        signature: "riemann_constant(C, from = P0, reduce = true)",
+        summary: "Riemann's constant vector K for the base point P0 and the basis of `tau(C, reduce = ...)`: theta(abel_jacobi(C, D) - K) = 0 for every effective divisor D of degree g - 1; reduced like `abel_jacobi`. Curves y^m = f(x) so far.",
+    },
+    Builtin {
+        name: "lattice_coords",
+        positional: &[p("tau", K::Matrix), p("z", K::Vector)],
+        keywords: &[],
+        region: RegionUse::None,
+        yields: Yields::Vector,
+        signature: "lattice_coords(T, z)",
+        summary: "The real coordinates [a_1, ..., a_g, b_1, ..., b_g] of z in the lattice basis: z = a + T b. A point of the lattice has whole coordinates, a half-period half-whole ones.",
     },
     Builtin {
         name: "is_riemann",

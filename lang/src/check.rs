@@ -1030,6 +1030,7 @@ impl Checker {
             Yields::Bool => Kind::Bool,
             Yields::List => Kind::List,
             Yields::Matrix => Kind::Matrix(None),
+            Yields::Vector => Kind::Vector(None),
             Yields::Wave => Kind::Wave,
             Yields::SameKind => Kind::Unknown,
         }
@@ -1138,7 +1139,7 @@ pub fn placeholder(kind: ParamKind, symbols: &[Symbol], size: Option<usize>) -> 
         ParamKind::Matrix => "[[1i]]".into(),
         ParamKind::Vector | ParamKind::Collection => format!("[{}]", zeros(size.unwrap_or(1), "0")),
         ParamKind::VectorList => format!("[[{}]]", zeros(size.unwrap_or(1), "1")),
-        ParamKind::Point => "(0, 0)".into(),
+        ParamKind::Point | ParamKind::Points => "(0, 0)".into(),
         ParamKind::Characteristic => {
             let row = format!("[{}]", zeros(size.unwrap_or(1), "0"));
             format!("[{row}, {row}]")
@@ -1207,6 +1208,7 @@ fn accepts(p: ParamKind, k: Kind) -> bool {
         ParamKind::VectorList => matches!(k, Matrix(_) | Vector(Some(0))),
         ParamKind::Collection => matches!(k, Vector(_) | Matrix(_) | List),
         ParamKind::Point => matches!(k, Point { .. }),
+        ParamKind::Points => matches!(k, Point { .. } | List),
         ParamKind::Bool => k == Bool,
         ParamKind::CurveOrMatrix => matches!(k, Curve | Matrix(_)),
         ParamKind::Numeric => matches!(k, Number | Vector(_) | Matrix(_)),
@@ -1223,6 +1225,7 @@ fn describe_param(p: ParamKind) -> &'static str {
         ParamKind::VectorList => "a list of vectors",
         ParamKind::Collection => "a list or vector",
         ParamKind::Point => "a point `(x, y)` or `(x : y : z)`",
+        ParamKind::Points => "a point or a list of points",
         ParamKind::Characteristic => "characteristics `[a, b]`",
         ParamKind::Bool => "true or false",
         ParamKind::CurveOrMatrix => "a curve or a 1 x 1 matrix",

@@ -2,6 +2,7 @@
 //! homology basis, tau = A^-1 B, with an error estimate and the free self-checks
 //! (symmetry defect, smallest eigenvalue of Im tau).
 
+pub mod abel;
 pub mod fingerprint;
 pub mod general;
 pub mod modular;

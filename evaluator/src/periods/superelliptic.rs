@@ -17,7 +17,7 @@
 
 use super::quad;
 use super::symplectic::symplectic_basis;
-use super::tree::{spanning_tree, Edge, Offset};
+use super::tree::{spanning_tree, Offset};
 use crate::algebra::roots::refined_roots;
 use crate::algebra::upoly::UPoly;
 use nalgebra::DMatrix;
@@ -69,6 +69,11 @@ pub struct Periods {
     /// Quadrature nodes used, summed over edges and exponents j.
     pub nodes: usize,
     pub largest_rule: usize,
+    /// y^m = f(x) only: the spanning tree's edges with their integrals, from which the
+    /// Abel–Jacobi map reaches every branch point (`periods::abel`).
+    pub tree: Vec<EdgeData>,
+    /// y^m = f(x) only: the roots' inclusion radii, beside `branch_points`.
+    pub root_radii: Vec<f64>,
 }
 
 #[derive(Clone, Debug, PartialEq)]
@@ -108,15 +113,29 @@ fn log_branch(u_minus_t: C64, u: C64) -> C64 {
     (-u).ln() + (u_minus_t / u).ln()
 }
 
-struct EdgeData {
-    a: usize,
-    b: usize,
+/// One straight edge from branch point a: to branch point b, or (for the Abel–Jacobi map)
+/// to a regular point.
+#[derive(Clone, Debug)]
+pub struct EdgeData {
+    pub a: usize,
+    pub b: usize,
     /// Arguments of y_e's leading coefficient at a and at b.
     arg_a: f64,
     arg_b: f64,
     /// integral over [a, b] of each differential against y_e, and its error bound.
-    integrals: Vec<C64>,
-    errors: Vec<f64>,
+    pub integrals: Vec<C64>,
+    pub errors: Vec<f64>,
+    /// log y_e at the far end when it is a regular point (its branch, to match a given y).
+    pub log_y_end: C64,
+}
+
+/// Where an edge ends.
+#[derive(Clone, Copy, Debug)]
+pub enum End {
+    /// At the branch point with this index.
+    Branch(usize),
+    /// At a regular point x (f(x) != 0).
+    Regular(C64),
 }
 
 /// f has no repeated root: certified mod 2^61 - 1 when possible (an exact gcd over Q of
@@ -169,7 +188,7 @@ pub fn periods(m: u32, f: &UPoly, tol: f64) -> Result<Periods, PeriodError> {
     let mut largest_rule = 0;
     let mut edges = vec![];
     for e in &tree {
-        let (d, used, big) = edge_integrals(m, lead, &roots, &radii, e, &diffs, tol)?;
+        let (d, used, big) = edge_integrals(m, lead, &roots, &radii, e.a, End::Branch(e.b), &diffs, tol)?;
         nodes += used;
         largest_rule = largest_rule.max(big);
         edges.push(d);
@@ -272,6 +291,8 @@ pub fn periods(m: u32, f: &UPoly, tol: f64) -> Result<Periods, PeriodError> {
         edges: edges.len(),
         nodes,
         largest_rule,
+        tree: edges,
+        root_radii: radii,
     })
 }
 
@@ -321,20 +342,27 @@ fn pieces(us: &[Offset]) -> Vec<Piece> {
 
 /// Integrals of every differential along one edge against the edge's branch y_e, with the
 /// leading-coefficient arguments of y_e at both ends. Returns (data, nodes used, largest rule).
-fn edge_integrals(
+#[allow(clippy::too_many_arguments)]
+pub fn edge_integrals(
     m: u32,
     lead: f64,
     roots: &[C64],
     radii: &[f64],
-    e: &Edge,
+    ea: usize,
+    end: End,
     diffs: &[Differential],
     tol: f64,
 ) -> Result<(EdgeData, usize, usize), PeriodError> {
-    let (pa, pb) = (roots[e.a], roots[e.b]);
+    // A regular end takes no weight: y^m = lead half^n (1 + t) prod (t - u_k) there.
+    let (eb, pb, b_branch) = match end {
+        End::Branch(b) => (b, roots[b], true),
+        End::Regular(x) => (usize::MAX, x, false),
+    };
+    let pa = roots[ea];
     let half = (pb - pa) / 2.0;
     let mid = (pa + pb) / 2.0;
     let n = roots.len();
-    let others: Vec<usize> = (0..n).filter(|&k| k != e.a && k != e.b).collect();
+    let others: Vec<usize> = (0..n).filter(|&k| k != ea && k != eb).collect();
     let us: Vec<Offset> = others.iter().map(|&k| Offset::new(pa, pb, roots[k])).collect();
     // How far each u - t may be off, absolutely: rounding in the offsets (a few ulps of 2 + |d|)
     // and the roots' inclusion radii (moving u by 2 delta / |b - a|).
@@ -343,12 +371,15 @@ fn edge_integrals(
         .zip(&us)
         .map(|(&k, o)| {
             let d = o.d_lo.norm().min(o.d_hi.norm());
-            4.0 * f64::EPSILON * (2.0 + d) + 2.0 * (radii[k] + radii[e.a] + radii[e.b]) * (1.0 + d) / (pb - pa).norm()
+            let rb = if b_branch { radii[eb] } else { 0.0 };
+            4.0 * f64::EPSILON * (2.0 + d) + 2.0 * (radii[k] + radii[ea] + rb) * (1.0 + d) / (pb - pa).norm()
         })
         .collect();
     let mf = m as f64;
-    // y_e = Ce (1 - t^2)^(1/m) prod (t - u_k)^(1/m), Ce^m = -lead half^n.
-    let log_ce = (C64::new(-lead, 0.0).ln() + n as f64 * half.ln()) / mf;
+    // y_e = Ce (1 - t^2)^(1/m) prod (t - u_k)^(1/m), Ce^m = -lead half^n; to a regular end
+    // y_e = Ce (1 + t)^(1/m) prod (t - u_k)^(1/m), Ce^m = lead half^n.
+    let sign = if b_branch { -lead } else { lead };
+    let log_ce = (C64::new(sign, 0.0).ln() + n as f64 * half.ln()) / mf;
     let arg_a = log_ce.im + us.iter().map(|o| log_branch(o.d_lo, o.u)).sum::<C64>().im / mf;
     let arg_b = log_ce.im + us.iter().map(|o| log_branch(o.d_hi, o.u)).sum::<C64>().im / mf;
 
@@ -392,7 +423,9 @@ fn edge_integrals(
             // hp^(-j/m) of those it does: (1 -+ t) = hp (1 -+ s) at a touched end.
             let ends = |s: C64| -> C64 {
                 let mut f = C64::new(1.0, 0.0);
-                f *= if right { C64::new(hp.powf(-ex), 0.0) } else { (one_minus_c - hp * s).powf(-ex) };
+                if b_branch {
+                    f *= if right { C64::new(hp.powf(-ex), 0.0) } else { (one_minus_c - hp * s).powf(-ex) };
+                }
                 f *= if left { C64::new(hp.powf(-ex), 0.0) } else { (one_plus_c + hp * s).powf(-ex) };
                 f
             };
@@ -408,7 +441,7 @@ fn edge_integrals(
                     * x.max(1.0).powi(max_pow as i32)
                     * (-jf * (log_ce.re + 0.5 * prod.ln() / mf)).exp()
             };
-            let weight = quad::Weight { a: if right { j } else { 0 }, b: if left { j } else { 0 }, q: m };
+            let weight = quad::Weight { a: if right && b_branch { j } else { 0 }, b: if left { j } else { 0 }, q: m };
             let mu0 = weight.mu0();
             let m0 = (0..=32).map(|k| abs_g(C64::new(-1.0 + k as f64 / 16.0, 0.0))).fold(0.0, f64::max);
             let target = (1e-3 * tol).max(1e-16) * mu0 * m0;
@@ -460,5 +493,6 @@ fn edge_integrals(
             }
         }
     }
-    Ok((EdgeData { a: e.a, b: e.b, arg_a, arg_b, integrals, errors }, used, largest))
+    let log_y_end = log_ce + (2f64.ln() + us.iter().map(|o| log_branch(o.d_hi, o.u)).sum::<C64>()) / mf;
+    Ok((EdgeData { a: ea, b: eb, arg_a, arg_b, integrals, errors, log_y_end }, used, largest))
 }

@@ -82,6 +82,7 @@ pub fn completion(doc: &Doc, pos: Position, snippets: bool) -> CompletionRespons
                 ParamKind::Collection => matches!(k, Kind::Vector(_) | Kind::List),
                 ParamKind::Bool => k == Kind::Bool,
                 ParamKind::Point => matches!(k, Kind::Point { .. }),
+                ParamKind::Points => matches!(k, Kind::Point { .. } | Kind::List),
                 ParamKind::Number => k == Kind::Number,
                 ParamKind::Numeric => matches!(k, Kind::Number | Kind::Vector(_) | Kind::Matrix(_)),
             };

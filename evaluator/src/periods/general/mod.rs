@@ -693,6 +693,8 @@ pub fn periods(poly: &Poly, projective: bool, facts: &CurveFacts, genus: i64) ->
         edges: n,
         nodes: walk.nodes,
         largest_rule: RULES.1,
+        tree: vec![],
+        root_radii: vec![],
     };
     Ok(General { periods, covering })
 }
