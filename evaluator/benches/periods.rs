@@ -69,3 +69,24 @@ fn covering_route(b: divan::Bencher, src: &str) {
         riemann_matrix(out.periods, true).expect("tau").error
     });
 }
+
+/// The Abel–Jacobi map once the periods are known: the integrals of the three differentials
+/// of the smooth plane quartic y^3 = x^4 + 3 - x + 4x^2 + x^3 (genus 3, invented) from the
+/// first branch point to a point of the curve (one straight edge on top of the tree path),
+/// then normalised by the a-periods. Target: 5 ms.
+#[divan::bench]
+fn abel_jacobi_point_genus3_quartic(b: divan::Bencher) {
+    use kelp_evaluator::periods::abel::{AbelMap, Place};
+    let p = f(4);
+    let r = riemann_matrix(periods(3, &p, 1e-12).expect("periods"), true).expect("tau");
+    let map = AbelMap::new(&r.periods, 3, &p, 1e-12).expect("map");
+    let x = C64::new(0.7, 0.4);
+    let fx = p.eval_f64(x);
+    let y = fx.powf(1.0 / 3.0);
+    let ainv = r.basis.a.clone().try_inverse().expect("invertible");
+    b.bench(|| {
+        let (xr, yr, _) = map.refine(divan::black_box(x), y);
+        let img = map.place(Place::Finite(xr, yr)).expect("image");
+        &ainv * nalgebra::DVector::from_vec(img.v)
+    });
+}

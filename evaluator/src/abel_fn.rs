@@ -71,15 +71,17 @@ impl Evaluator<'_> {
                 self.locate(&map, &shape, &v, e)?
             }
             None if gcd(shape.m, n) == 1 || !needs_base => Located { place: Place::Infinity, error: 0.0 },
-            None => return Err(fail(
-                Code::MissingArgument,
-                span,
-                format!(
+            None => {
+                return Err(fail(
+                    Code::MissingArgument,
+                    span,
+                    format!(
                     "`{}` has {} places at infinity, so there is no default base point: give one with `from = (x, y)`",
                     c.name,
                     gcd(shape.m, n)
                 ),
-            )),
+                ))
+            }
         };
         let Some((u, degree, described)) = divisor else {
             let base_img = map.place(base.place).map_err(|m| fail(Code::EvalFailed, span, m))?;
