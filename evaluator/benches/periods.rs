@@ -90,3 +90,21 @@ fn abel_jacobi_point_genus3_quartic(b: divan::Bencher) {
         &ainv * nalgebra::DVector::from_vec(img.v)
     });
 }
+
+/// The search behind `equivalent` / `transform_between` for two genus-3 matrices related by
+/// a product of generators (the Riemann matrix of y^3 = x^4 + ... above and its image under
+/// J followed by an integer translation): Siegel reduction of both, lattice isometries,
+/// inversions. Target: 50 ms.
+#[divan::bench]
+fn equivalence_search_genus3(b: divan::Bencher) {
+    use kelp_evaluator::theta::isometry::find_transform;
+    use kelp_evaluator::theta::siegel::{act, j_form};
+    let p = f(4);
+    let t = riemann_matrix(periods(3, &p, 1e-12).expect("periods"), false).expect("tau").tau;
+    let mut shift = nalgebra::DMatrix::<i64>::identity(6, 6);
+    shift[(0, 4)] = 1;
+    shift[(1, 3)] = 1;
+    let j = -j_form(3);
+    let t2 = act(&(shift * j), &t).expect("invertible");
+    b.bench(|| find_transform(divan::black_box(&t), &t2, 1e-7).expect("found"));
+}

@@ -33,7 +33,12 @@ pub fn hyperelliptic_vanishing(g: usize) -> u64 {
 
 impl Evaluator<'_> {
     /// The genus and the even theta constants of the matrix argument, each with its bound.
-    fn even_constants(&mut self, span: Span, what: &str, args: &[Arg]) -> Result<(usize, Vec<(C64, f64)>), Fail> {
+    pub(crate) fn even_constants(
+        &mut self,
+        span: Span,
+        what: &str,
+        args: &[Arg],
+    ) -> Result<(usize, Vec<(C64, f64)>), Fail> {
         let Some(Arg::Positional(e)) = args.first() else {
             return Err(fail(Code::MissingArgument, span, format!("`{what}` needs a Riemann matrix")));
         };
@@ -56,15 +61,27 @@ impl Evaluator<'_> {
             ));
         }
         let t = nalgebra::DMatrix::from_fn(g, g, |i, j| rows[i][j].to_complex());
-        let zero = vec![C64::new(0.0, 0.0); g];
+        let out = self.theta_constants(&t, v.error_bound, e.span, span)?;
+        Ok((g, out))
+    }
+
+    /// The even theta constants of T (error bound `err`), each with its bound.
+    pub(crate) fn theta_constants(
+        &mut self,
+        t: &nalgebra::DMatrix<C64>,
+        err: f64,
+        tspan: Span,
+        span: Span,
+    ) -> Result<Vec<(C64, f64)>, Fail> {
+        let zero = vec![C64::new(0.0, 0.0); t.nrows()];
         let mut out = Vec::new();
-        for ch in even_characteristics(g) {
+        for ch in even_characteristics(t.nrows()) {
             crate::limits::checkpoint();
-            let r = self.theta_bounded(&t, v.error_bound, &zero, 0.0, Some(&ch), &[], e.span, span)?;
+            let r = self.theta_bounded(t, err, &zero, 0.0, Some(&ch), &[], tspan, span)?;
             let Value::Num(n) = r.value else { unreachable!("theta is a number") };
             out.push((n.to_complex(), r.error_bound));
         }
-        Ok((g, out))
+        Ok(out)
     }
 
     pub(crate) fn jacobian_call(&mut self, span: Span, what: &str, args: &[Arg]) -> Result<Valued, Fail> {

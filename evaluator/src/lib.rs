@@ -6,6 +6,7 @@ mod abel_fn;
 pub mod algebra;
 mod bounded;
 pub mod curve_fn;
+mod equivalence_fn;
 pub mod eval;
 pub mod incremental;
 mod jacobian_fn;

@@ -14,6 +14,7 @@
 
 pub mod bench_cases;
 pub mod bound;
+pub mod isometry;
 pub mod lattice;
 mod rounding;
 pub mod siegel;
