@@ -265,6 +265,15 @@ pub const BUILTINS: &[Builtin] = &[
         summary: "The sorted values |theta[m](0)|^8 / max over the even characteristics m: an Sp(2g, Z) invariant of T, with a bound.",
     },
     Builtin {
+        name: "schottky_value",
+        positional: &[p("tau", K::Matrix)],
+        keywords: &[],
+        region: RegionUse::None,
+        yields: Yields::Number,
+        signature: "schottky_value(T)",
+        summary: "|2^g sum theta_m^16 - (sum theta_m^8)^2| / (2^g sum |theta_m|^16) over the even theta constants: Igusa's form, scale-free, with a bound. In genus 4 it vanishes exactly on the closure of the Jacobian locus (identically below genus 4), so `expect schottky_value(T) > 1e-6` proves T is not a Jacobian.",
+    },
+    Builtin {
         name: "is_riemann",
         positional: &[p("matrix", K::Matrix)],
         keywords: &[],
