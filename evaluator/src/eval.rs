@@ -442,6 +442,7 @@ impl<'a> Evaluator<'a> {
             "even_thetas" | "hyperelliptic" | "schottky_value" => self.jacobian_call(span, &func.name, args),
             "abel_jacobi" | "riemann_constant" | "lattice_coords" => self.abel_call(span, &func.name, args),
             "equivalent" | "transform_between" | "theta_moduli" => self.equivalence_call(span, &func.name, args),
+            "igusa_invariants" => self.igusa_call(span, args),
             "siegel_transform" | "siegel_reduced" | "symplectic_act" => self.symplectic_call(span, &func.name, args),
             "soliton" | "rational" | "theta_wave" | "krichever" | "shallow_water" => {
                 self.wave_call(span, &func.name, args)

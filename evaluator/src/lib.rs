@@ -8,6 +8,7 @@ mod bounded;
 pub mod curve_fn;
 mod equivalence_fn;
 pub mod eval;
+mod igusa_fn;
 pub mod incremental;
 mod jacobian_fn;
 pub mod json;

@@ -274,6 +274,15 @@ pub const BUILTINS: &[Builtin] = &[
         summary: "|2^g sum theta_m^16 - (sum theta_m^8)^2| / (2^g sum |theta_m|^16) over the even theta constants: Igusa's form, scale-free, with a bound. In genus 4 it vanishes exactly on the closure of the Jacobian locus (identically below genus 4), so `expect schottky_value(T) > 1e-6` proves T is not a Jacobian.",
     },
     Builtin {
+        name: "igusa_invariants",
+        positional: &[p("curve_or_tau", K::CurveOrMatrix)],
+        keywords: &[],
+        region: RegionUse::None,
+        yields: Yields::Vector,
+        signature: "igusa_invariants(X)",
+        summary: "The absolute invariants [I2^5 / I10, I2^3 I4 / I10, I2^2 I6 / I10] of a genus-2 curve, from its equation y^2 = f(x) (deg f = 5 or 6) or from its 2 x 2 Riemann matrix (Rosenhain's form from theta constants), with a bound: equal for isomorphic curves and for Sp(4, Z)-equivalent matrices.",
+    },
+    Builtin {
         name: "is_riemann",
         positional: &[p("matrix", K::Matrix)],
         keywords: &[],

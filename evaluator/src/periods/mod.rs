@@ -5,6 +5,7 @@
 pub mod abel;
 pub mod fingerprint;
 pub mod general;
+pub mod igusa;
 pub mod modular;
 pub mod quad;
 pub mod shape;
