@@ -438,7 +438,9 @@ impl<'a> Evaluator<'a> {
             }
             "theta" => self.theta_call(span, args),
             "tau" => self.tau_call(span, args),
-            "a_periods" | "b_periods" | "differentials" => self.periods_call(span, &func.name, args),
+            "a_periods" | "b_periods" | "differentials" | "intersection_matrix" => {
+                self.periods_call(span, &func.name, args)
+            }
             "even_thetas" | "hyperelliptic" | "schottky_value" => self.jacobian_call(span, &func.name, args),
             "abel_jacobi" | "riemann_constant" | "lattice_coords" => self.abel_call(span, &func.name, args),
             "equivalent" | "transform_between" | "theta_moduli" => self.equivalence_call(span, &func.name, args),

@@ -57,6 +57,9 @@ impl Evaluator<'_> {
         let (c, reduce, cspan) = self.curve_and_reduce(span, which, args)?;
         let r = self.riemann_matrix(&c, reduce, cspan)?;
         let p = &r.periods;
+        if which == "intersection_matrix" {
+            return Ok(Valued::exact(intersection_value(&r)));
+        }
         if which == "differentials" {
             let forms = p.forms.iter().map(|f| Value::Str(f.clone())).collect();
             return Ok(Valued::exact(Value::List(forms)));
@@ -171,6 +174,29 @@ impl Evaluator<'_> {
             .map_err(|e| period_fail(&e, span, &c.name))?;
         riemann_matrix((*p).clone(), reduce).map_err(|e| period_fail(&e, span, &c.name))
     }
+}
+
+/// The intersection numbers of the cycles tau refers to, as an exact matrix: the basis's
+/// own (from the lifted cycles), moved by the reducing Gamma = [[a, b], [c, d]] when tau was
+/// reduced: the new cycles are a' = d a + c b, b' = b a + a b in block form
+/// (`periods::change_cycles`), so the matrix becomes M I M^T with M = [[d, c], [b, a]].
+fn intersection_value(r: &RiemannMatrix) -> Value {
+    let n = r.periods.intersection.len();
+    let i = nalgebra::DMatrix::from_fn(n, n, |p, q| r.periods.intersection[p][q] as i128);
+    let out = match &r.reduced {
+        Some(gamma) => {
+            let g = n / 2;
+            let blk = |rr: usize, cc: usize| gamma.view((rr * g, cc * g), (g, g)).map(|v| v as i128);
+            let mut m = nalgebra::DMatrix::<i128>::zeros(n, n);
+            m.view_mut((0, 0), (g, g)).copy_from(&blk(1, 1));
+            m.view_mut((0, g), (g, g)).copy_from(&blk(1, 0));
+            m.view_mut((g, 0), (g, g)).copy_from(&blk(0, 1));
+            m.view_mut((g, g), (g, g)).copy_from(&blk(0, 0));
+            &m * i * m.transpose()
+        }
+        None => i,
+    };
+    Value::Matrix(out.row_iter().map(|row| row.iter().map(|&v| Num::int(v as i64)).collect()).collect())
 }
 
 /// Refuses a genus above the `max_genus` setting.

@@ -283,6 +283,15 @@ pub const BUILTINS: &[Builtin] = &[
         summary: "The absolute invariants [I2^5 / I10, I2^3 I4 / I10, I2^2 I6 / I10] of a genus-2 curve, from its equation y^2 = f(x) (deg f = 5 or 6) or from its 2 x 2 Riemann matrix (Rosenhain's form from theta constants), with a bound: equal for isomorphic curves and for Sp(4, Z)-equivalent matrices.",
     },
     Builtin {
+        name: "intersection_matrix",
+        positional: &[p("curve", K::Curve)],
+        keywords: &[opt("reduce", K::Bool)],
+        region: RegionUse::None,
+        yields: Yields::Matrix,
+        signature: "intersection_matrix(C, reduce = true)",
+        summary: "The intersection numbers of the cycles a_1..a_g, b_1..b_g that `tau(C, reduce = ...)` uses, computed from the lifted cycles (exact integers): the standard symplectic form [[0, I], [-I, 0]] when the homology basis is right.",
+    },
+    Builtin {
         name: "is_riemann",
         positional: &[p("matrix", K::Matrix)],
         keywords: &[],

@@ -127,3 +127,34 @@ fn periods_satisfy_riemanns_bilinear_relations() {
         }
     }
 }
+
+// The cycles behind tau are a symplectic basis: their intersection numbers, computed from
+// the lifted cycles' own, form [[0, I], [-I, 0]] (the definition of a canonical homology
+// basis; common practice, e.g. Farkas & Kra, *Riemann Surfaces*, III.1), before and after
+// Siegel's reduction, on both routes.
+#[test]
+fn the_homology_basis_is_symplectic() {
+    for c in ["y^2 = x^5 - x + 1", "y^3 = x^4 - 2*x^2 + 0.5*x + 1", "y^2 = x^8 + 3*x - 1", "x^3*y + y^3 + x"] {
+        for reduce in ["true", "false"] {
+            let src = format!("curve C: {c}\nlet I = intersection_matrix(C, reduce = {reduce})\nlet T = tau(C)\n");
+            let e = fixture::eval(&src);
+            let v =
+                &e.values.iter().find(|v| v.name == "I").unwrap_or_else(|| panic!("{src}: {:?}", e.diagnostics)).value;
+            let kelp_evaluator::Value::Matrix(rows) = &v.value else { panic!() };
+            let n = rows.len();
+            let g = n / 2;
+            for (i, row) in rows.iter().enumerate() {
+                for (j, x) in row.iter().enumerate() {
+                    let want = if j == i + g {
+                        1.0
+                    } else if i == j + g {
+                        -1.0
+                    } else {
+                        0.0
+                    };
+                    assert!(x.is_exact() && x.to_complex().re == want, "{c} reduce = {reduce}: [{i}, {j}] = {x}");
+                }
+            }
+        }
+    }
+}

@@ -74,6 +74,8 @@ pub struct Periods {
     pub tree: Vec<EdgeData>,
     /// y^m = f(x) only: the roots' inclusion radii, beside `branch_points`.
     pub root_radii: Vec<f64>,
+    /// Intersection numbers of a_1..a_g, b_1..b_g, computed from the lifted cycles'.
+    pub intersection: Vec<Vec<i64>>,
 }
 
 #[derive(Clone, Debug, PartialEq)]
@@ -293,6 +295,7 @@ pub fn periods(m: u32, f: &UPoly, tol: f64) -> Result<Periods, PeriodError> {
         largest_rule,
         tree: edges,
         root_radii: radii,
+        intersection: basis.intersections(&k),
     })
 }
 

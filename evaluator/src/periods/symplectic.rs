@@ -13,6 +13,26 @@ pub struct SymplecticBasis {
     pub b: Vec<Vec<i64>>,
 }
 
+impl SymplecticBasis {
+    /// The intersection numbers of a_1..a_g, b_1..b_g computed from the cycles' own
+    /// intersection matrix k (the standard symplectic form when the reduction is right).
+    pub fn intersections(&self, k: &[Vec<i64>]) -> Vec<Vec<i64>> {
+        let vs: Vec<&Vec<i64>> = self.a.iter().chain(&self.b).collect();
+        let pair = |x: &[i64], y: &[i64]| -> i64 {
+            let mut s = 0i128;
+            for (i, &xi) in x.iter().enumerate() {
+                if xi != 0 {
+                    for (j, &yj) in y.iter().enumerate() {
+                        s += xi as i128 * k[i][j] as i128 * yj as i128;
+                    }
+                }
+            }
+            s as i64
+        };
+        vs.iter().map(|x| vs.iter().map(|y| pair(x, y)).collect()).collect()
+    }
+}
+
 fn round_div(a: i128, d: i128) -> i128 {
     let q = a.div_euclid(d);
     let r = a.rem_euclid(d);

@@ -695,6 +695,7 @@ pub fn periods(poly: &Poly, projective: bool, facts: &CurveFacts, genus: i64) ->
         largest_rule: RULES.1,
         tree: vec![],
         root_radii: vec![],
+        intersection: basis.intersections(&k),
     };
     Ok(General { periods, covering })
 }
