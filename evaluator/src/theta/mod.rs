@@ -510,7 +510,9 @@ impl ThetaContext {
                 // Powers only as far as the enumeration can reach (|n_j| <= need_j), by
                 // repeated products from 1 outwards as before.
                 let reach = (need[j] as usize + 1).min(h);
-                let (e, einv) = (phase(l), phase(-l));
+                // exp(-i phi) is the conjugate (exact), with the same error as exp(i phi).
+                let e = phase(l);
+                let einv = e.conj();
                 let p = &mut block[pow_off[j]..pow_off[j] + 2 * h + 1];
                 p[h] = C64::new(1.0, 0.0);
                 for k in 1..=reach {

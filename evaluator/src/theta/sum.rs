@@ -172,6 +172,7 @@ pub fn run(inp: &SumInput) -> SumOutput {
         weights: vec![zero; nm],
         t: vec![zero; 2 * nb],
         rho: vec![zero; 2 * nb],
+        jet: jet_exponents(inp),
     };
     w.prod[g * nb..].copy_from_slice(inp.k);
     for i in 0..inp.dirs.len() {
@@ -189,6 +190,34 @@ pub fn run(inp: &SumInput) -> SumOutput {
         }
     }
     out
+}
+
+/// ceil(x) for |x| <= h + 1, and a value beyond -h - 1 or h + 1 on the same side
+/// otherwise (the callers clamp to [-h, h]); without a libm call on targets that lack a
+/// rounding instruction.
+#[inline(always)]
+fn ceil_within(x: f64, h: i64) -> i64 {
+    let lim = (h + 1) as f64;
+    let x = x.clamp(-lim, lim);
+    let i = x as i64;
+    if (i as f64) < x {
+        i + 1
+    } else {
+        i
+    }
+}
+
+/// floor(x), as [`ceil_within`].
+#[inline(always)]
+fn floor_within(x: f64, h: i64) -> i64 {
+    let lim = (h + 1) as f64;
+    let x = x.clamp(-lim, lim);
+    let i = x as i64;
+    if (i as f64) > x {
+        i - 1
+    } else {
+        i
+    }
 }
 
 /// Knuth's TwoSum: s + e = a + b exactly, with s = fl(a + b).
@@ -228,6 +257,19 @@ struct Walker<'a> {
     rho: Vec<C64>,
     /// Sums along the current line, per z and monomial (derivative passes only).
     line_acc: Vec<C64>,
+    /// For a jet (one direction, every monomial a single power e <= `JET_MAX`): each
+    /// monomial's exponent.
+    jet: Option<Vec<usize>>,
+}
+
+/// The highest order a jet pass takes by [`Walker::jet_line`].
+const JET_MAX: usize = 4;
+
+fn jet_exponents(inp: &SumInput) -> Option<Vec<usize>> {
+    if inp.dirs.len() != 1 || inp.monos.iter().any(|m| m.len() != 1 || m[0] as usize > JET_MAX) {
+        return None;
+    }
+    Some(inp.monos.iter().map(|m| m[0] as usize).collect())
 }
 
 impl Walker<'_> {
@@ -243,8 +285,8 @@ impl Walker<'_> {
         let centre = inp.s[j] + self.part[j * stride + j + 1] / gj;
         let half = r2.max(0.0).sqrt() / gj;
         let h = inp.tables.half[j];
-        let lo = ((-centre - half).ceil() as i64).max(-h);
-        let hi = ((-centre + half).floor() as i64).min(h);
+        let lo = ceil_within(-centre - half, h).max(-h);
+        let hi = floor_within(-centre + half, h).min(h);
         if lo > hi {
             return;
         }
@@ -285,6 +327,7 @@ impl Walker<'_> {
     /// backward walk starts from t(m) times its own first ratio (the ratio of consecutive
     /// ratios is exp(2 pi i tau'_00) either way), so its term k points out of m is k
     /// recurrence steps from t(m) and is charged as such.
+    #[inline(always)]
     fn line(&mut self, lo: i64, hi: i64, centre: f64, used: f64) {
         let len = (hi - lo + 1) as usize;
         self.out.points += len;
@@ -340,6 +383,14 @@ impl Walker<'_> {
         }
         if inp.dirs.is_empty() {
             self.plain_line(nf, nbk, x0, used);
+        } else if let Some(n) = self.jet.as_ref().map(|e| e.iter().copied().max().unwrap_or(0) + 1) {
+            match n {
+                1 => self.jet_line::<1>(nf, nbk, mid, x0, used),
+                2 => self.jet_line::<2>(nf, nbk, mid, x0, used),
+                3 => self.jet_line::<3>(nf, nbk, mid, x0, used),
+                4 => self.jet_line::<4>(nf, nbk, mid, x0, used),
+                _ => self.jet_line::<{ JET_MAX + 1 }>(nf, nbk, mid, x0, used),
+            }
         } else {
             self.line_acc.iter_mut().for_each(|a| *a = C64::new(0.0, 0.0));
             for step in 0..nf {
@@ -356,6 +407,7 @@ impl Walker<'_> {
 
     /// A line without derivative weights: `nf` points forward from the start m (steps
     /// 0..nf), `nbk` backward (steps 1..=nbk), one compensated addition per z.
+    #[inline(always)]
     fn plain_line(&mut self, nf: usize, nbk: usize, x0: f64, used: f64) {
         let inp = self.inp;
         let nb = inp.k.len();
@@ -402,6 +454,81 @@ impl Walker<'_> {
         self.out.abs0 += abs;
         for a in self.out.grow.iter_mut() {
             *a += grow;
+        }
+    }
+
+    /// A line of a jet pass (see [`jet_exponents`]), N = highest exponent + 1: the same
+    /// walk, sums and bookkeeping as [`Walker::deriv_step`] with the weights s^e
+    /// (s = 2 pi i m.d) applied by Horner's scheme, t s^e = (t s^(e-1)) s: e complex
+    /// products per weighted term as before (s^e by e - 1 products, then times t), without
+    /// a product per monomial. The weights' moduli for the bound are |s|^e (computed
+    /// modulus; |s^e| = |s|^e, and its few roundings are covered like those of the other
+    /// moduli sums, see `rounding.rs`), at most the |re| + |im| of the power used before.
+    #[inline(never)]
+    fn jet_line<const N: usize>(&mut self, nf: usize, nbk: usize, mid: i64, x0: f64, used: f64) {
+        let inp = self.inp;
+        let nb = inp.k.len();
+        let nm = inp.monos.len();
+        let q = inp.q;
+        let d0 = inp.dirs[0][0];
+        let lin1 = self.lin[0][1];
+        let g0 = inp.c[(0, 0)];
+        let [c1, c2, c3] = inp.growth;
+        let derr = inp.dir_err;
+        let zero = C64::new(0.0, 0.0);
+        let (mut abs, mut grow, mut oerr) = ([0.0; N], [0.0; N], [0.0; N]);
+        for b in 0..nb {
+            let mut acc = [zero; N];
+            // Forward: steps 0..nf from m; backward: steps 1..=nbk.
+            for (side, n, dir, k0) in [(0, nf, 1i64, 0i64), (nb, nbk, -1, 1)] {
+                let (mut t, mut rho) = (self.t[side + b], self.rho[side + b]);
+                for k in k0..k0 + n as i64 {
+                    let v = mid + dir * k;
+                    let s = lin1 + d0 * v as f64;
+                    if b == 0 {
+                        let tabs = t.re.abs() + t.im.abs();
+                        let kf = k as f64;
+                        let wk = g0 * (x0 + (dir * k) as f64);
+                        let tg = tabs * (kf * (c1 + c2 * kf) + c3 * (used + wk * wk));
+                        let m = (s.re * s.re + s.im * s.im).sqrt();
+                        let (mut pa, mut pg) = (tabs, tg);
+                        for e in 0..N {
+                            abs[e] += pa;
+                            grow[e] += pg;
+                            pa *= m;
+                            pg *= m;
+                        }
+                        // The weights' rounding: |t| (sigma + d)^(k-1) per total order k.
+                        let sig = s.re.abs() + s.im.abs() + derr;
+                        let mut po = tabs;
+                        for o in oerr.iter_mut().skip(1) {
+                            *o += po;
+                            po *= sig;
+                        }
+                    }
+                    let mut tt = t;
+                    for a in acc.iter_mut() {
+                        *a += tt;
+                        tt *= s;
+                    }
+                    t *= rho;
+                    rho *= q;
+                }
+            }
+            let exps = self.jet.as_deref().unwrap_or(&[]);
+            let row = b * nm..(b + 1) * nm;
+            for ((a, c), &e) in self.out.acc[row.clone()].iter_mut().zip(self.out.comp[row].iter_mut()).zip(exps) {
+                add_compensated(a, c, acc[e]);
+            }
+        }
+        let exps = self.jet.as_deref().unwrap_or(&[]);
+        for (mi, &e) in exps.iter().enumerate() {
+            self.out.abs[mi] += abs[e];
+            self.out.grow[mi] += grow[e];
+        }
+        self.out.abs0 += abs[0];
+        for (o, x) in self.order_err.iter_mut().zip(&oerr).skip(1) {
+            *o += x;
         }
     }
 
