@@ -45,14 +45,17 @@ impl Evaluator<'_> {
     pub(crate) fn curve_fact(&mut self, what: &str, c: &CurveValue, span: Span) -> Result<Valued, Fail> {
         if what == "j_invariant" {
             use crate::algebra::jinv;
-            let Some(f) = jinv::as_y2_equals(&c.equation.poly, c.equation.projective) else {
+            let Some(f) = jinv::as_y2_equals(&c.equation.poly, c.equation.projective)
+                .or_else(|| jinv::as_double_cover(&c.equation.poly, c.equation.projective))
+            else {
                 return Err(fail(
                     Code::NotSupported,
                     span,
                     format!(
-                        "`j_invariant` is computed for curves written y^2 = f(x) with deg f = 3 or 4; \
-                         `{}` has another shape, which is not supported yet",
-                        c.name
+                        "`j_invariant` is computed exactly for curves quadratic in y (or in x) with a constant square term, \
+                         A y^2 + B(x) y + C(x) = 0 with B^2 - 4AC of degree 3 or 4 (y^2 = f(x), y^2 + x y = x^3 - 1, ...); \
+                         `{}` has another shape, not supported yet (`j_invariant(tau({}))` gives j with a bound)",
+                        c.name, c.name
                     ),
                 ));
             };

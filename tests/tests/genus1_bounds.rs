@@ -123,3 +123,30 @@ fn j_error_covers_the_whole_error_disc() {
         }
     }
 }
+
+// j of long Weierstrass forms (quadratic in y) two independent ways: exactly from the
+// equation (completing the square) and numerically from the Riemann matrix of the
+// covering route (j(tau) with its bound); the exact values by Tate's formulas (Silverman,
+// *The Arithmetic of Elliptic Curves*, III.1; worked by hand): 110592/37 and -1/431.
+#[test]
+fn long_weierstrass_forms_exact_and_from_tau() {
+    for (eq, want) in [("y^2 + y = x^3 - x", 110592.0 / 37.0), ("y^2 + x*y = x^3 - 1", -1.0 / 431.0)] {
+        let src = format!("curve C: {eq}\nlet j = j_invariant(C)\nlet k = j_invariant(tau(C))\n");
+        let c = kelp_lang::check(&src);
+        let e = kelp_evaluator::evaluate(&c, &src, &kelp_evaluator::Mode::Check);
+        let get = |n: &str| {
+            e.values
+                .iter()
+                .find(|v| v.name == n)
+                .unwrap_or_else(|| panic!("{eq} {n}: {:?}", e.diagnostics))
+                .value
+                .clone()
+        };
+        let (j, k) = (get("j"), get("k"));
+        let kelp_evaluator::Value::Num(jn) = &j.value else { panic!() };
+        let kelp_evaluator::Value::Num(kn) = &k.value else { panic!() };
+        assert!(jn.is_exact() && (jn.to_complex().re - want).abs() <= 1e-12 * want.abs(), "{eq}: {jn}");
+        let miss = (kn.to_complex() - num_complex::Complex64::new(want, 0.0)).norm();
+        assert!(miss <= k.error_bound + 1e-12 * want.abs(), "{eq}: j(tau) = {kn} (bound {:e})", k.error_bound);
+    }
+}

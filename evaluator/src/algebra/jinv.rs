@@ -34,6 +34,37 @@ pub fn as_y2_equals(poly: &Poly, projective: bool) -> Option<UPoly> {
     Some(UPoly::new(f))
 }
 
+/// D(x) when the curve (affine, or projective read in the chart z = 1) is quadratic in y
+/// with a constant coefficient of y^2, A y^2 + B(x) y + C(x) = 0: completing the square,
+/// (2 A y + B)^2 = B^2 - 4 A C = D(x), a birational change, so the curve has the j of
+/// w^2 = D(x) (common practice). The same with x and y exchanged when that fits instead.
+pub fn as_double_cover(poly: &Poly, projective: bool) -> Option<UPoly> {
+    if !projective && poly.terms.keys().any(|m| m[2] > 0) {
+        return None;
+    }
+    let try_var = |v: usize| -> Option<UPoly> {
+        let u = 1 - v; // the other affine variable
+        let mut coef: [Vec<BigRational>; 3] = Default::default();
+        for (m, c) in &poly.terms {
+            let (k, i) = (m[v] as usize, m[u] as usize);
+            if k > 2 {
+                return None;
+            }
+            if coef[k].len() <= i {
+                coef[k].resize(i + 1, BigRational::zero());
+            }
+            coef[k][i] += c;
+        }
+        let (a, b, c) = (UPoly::new(coef[2].clone()), UPoly::new(coef[1].clone()), UPoly::new(coef[0].clone()));
+        if a.degree() != Some(0) {
+            return None;
+        }
+        let d = b.mul(&b).sub(&a.mul(&c).scale(&q(4)));
+        d.degree().filter(|&n| n == 3 || n == 4).map(|_| d)
+    };
+    try_var(1).or_else(|| try_var(0))
+}
+
 /// The j-invariant of y^2 = f(x), or why there is none.
 pub fn j_invariant(f: &UPoly) -> Result<BigRational, String> {
     let c = |i: usize| f.0.get(i).cloned().unwrap_or_else(BigRational::zero);
@@ -88,6 +119,22 @@ mod tests {
         assert_eq!(j_invariant(&UPoly::from_ints(&[0, -1, 0, 1])), Ok(q(1728)));
         assert_eq!(j_invariant(&UPoly::from_ints(&[1, 0, 0, 1])), Ok(q(0)));
         assert_eq!(j_invariant(&UPoly::from_ints(&[5, -2, 0, 1])), Ok(q(1728) * q(4 * -8) / (q(4 * -8) + q(27 * 25))));
+    }
+
+    // Long Weierstrass forms through the completed square, against Tate's formulas
+    // (Silverman, *The Arithmetic of Elliptic Curves*, III.1: b2, b4, b6, b8, c4, Delta,
+    // j = c4^3 / Delta): y^2 + y = x^3 - x has Delta = 37, c4 = 48, so j = 110592/37;
+    // y^2 + x y = x^3 - 1 has Delta = -431, c4 = 1, so j = -1/431 (worked by hand).
+    #[test]
+    fn long_weierstrass_forms() {
+        let parse = |s: &str| kelp_lang::check(&format!("curve C: {s}\n")).curves.values().next().unwrap().poly.clone();
+        for (eq, want) in [("y^2 + y = x^3 - x", r(110592, 37)), ("y^2 + x*y = x^3 - 1", r(-1, 431))] {
+            let f = as_double_cover(&parse(eq), false).expect("quadratic in y");
+            assert_eq!(j_invariant(&f), Ok(want), "{eq}");
+        }
+        // The same curve with x and y exchanged.
+        let f = as_double_cover(&parse("x^2 + x = y^3 - y"), false).expect("quadratic in x");
+        assert_eq!(j_invariant(&f), Ok(r(110592, 37)));
     }
 
     #[test]
