@@ -226,16 +226,31 @@ impl Evaluator<'_> {
             num_traits::Pow::pow(&qy, shape.m as i32) == shape.f.eval(&qx)
         };
         let (x0, y0) = (x.to_complex(), y.to_complex());
-        let (xr, yr, moved) = map.refine(x0, y0);
-        let size = 1.0f64.max(x0.norm()).max(y0.norm());
-        let tolerance = self.checked.settings.tolerance();
-        if !exact && !(moved <= tolerance * size) {
+        let too_big = |z: C64| !(z.norm() < 1e100);
+        if too_big(x0) || too_big(y0) {
             return Err(fail(
                 Code::EvalFailed,
                 e.span,
-                format!(
-                    "the point is not on the curve within the tolerance {tolerance:.0e}: the nearest point found is {moved:.2e} away"
-                ),
+                "the point's coordinates are too large for double precision (above 1e100)",
+            ));
+        }
+        let (xr, yr, moved) = map.refine(x0, y0);
+        let size = 1.0f64.max(x0.norm()).max(y0.norm());
+        let tolerance = self.checked.settings.tolerance();
+        // Where f's terms cancel, double precision cannot place the point better than its
+        // rounding; within that the point is as much on the curve as can be shown (the
+        // move still enters the bound).
+        let limit = map.rounding_limit(xr, yr);
+        if !exact && !(moved <= (tolerance * size).max(limit)) {
+            let why = if moved.is_finite() {
+                format!("the nearest point found is {moved:.2e} away")
+            } else {
+                "no nearby point was found".to_string()
+            };
+            return Err(fail(
+                Code::EvalFailed,
+                e.span,
+                format!("the point is not on the curve within the tolerance {tolerance:.0e}: {why}"),
             ));
         }
         // How far the point may be from the one integrated to: the conversion of exact

@@ -60,7 +60,13 @@ impl Evaluator<'_> {
             let (g, cs) = self.even_constants(span, what, args)?;
             let m = moduli(&cs);
             let mid: Vec<Num> = m.lo.iter().zip(&m.hi).map(|(l, h)| Num::Real(0.5 * (l + h))).collect();
-            let err = m.lo.iter().zip(&m.hi).map(|(l, h)| 0.5 * (h - l)).fold(0.0, f64::max) * (1.0 + 1e-15);
+            // Half the width, plus the rounding of the midpoint and of the width themselves.
+            let err =
+                m.lo.iter()
+                    .zip(&m.hi)
+                    .map(|(l, h)| 0.5 * (h - l) * (1.0 + 4.0 * f64::EPSILON) + 2.0 * f64::EPSILON * 0.5 * (l + h))
+                    .fold(0.0, f64::max)
+                    * (1.0 + 4.0 * f64::EPSILON);
             let reason = format!(
                 "|theta[m](0)|^8 over the {} even characteristics of genus {g}, divided by the largest, sorted: unchanged by Sp(2g, Z); error <= {err:.1e}",
                 cs.len()

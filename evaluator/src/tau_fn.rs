@@ -22,10 +22,34 @@ fn period_fail(e: &PeriodError, span: Span, name: &str) -> Fail {
     }
 }
 
+/// The differentials as the user wrote the curve: a curve x^m = f(y) goes through the
+/// route as y^m = f(x), so its forms are shown with x and y exchanged back.
+pub fn user_forms(forms: &[String], swapped: bool) -> Vec<String> {
+    if !swapped {
+        return forms.to_vec();
+    }
+    forms
+        .iter()
+        .map(|f| {
+            f.chars()
+                .map(|ch| match ch {
+                    'x' => 'y',
+                    'y' => 'x',
+                    other => other,
+                })
+                .collect()
+        })
+        .collect()
+}
+
+fn swapped(c: &CurveValue) -> bool {
+    superelliptic_route(&c.equation.poly, c.equation.projective).is_some_and(|s| s.swapped)
+}
+
 /// One line saying how a Riemann matrix was obtained.
-pub fn summary(r: &RiemannMatrix, equation: &str) -> String {
+pub fn summary(r: &RiemannMatrix, equation: &str, swapped: bool) -> String {
     let p = &r.periods;
-    let diffs = &p.forms;
+    let diffs = &user_forms(&p.forms, swapped);
     let paths = if p.plane.is_some() {
         format!("{} keyhole loops about the critical values, {} quadrature nodes (rules of 16 and {} points; error estimated, differentials checked by a second computation)", p.edges, p.nodes, p.largest_rule)
     } else {
@@ -61,7 +85,7 @@ impl Evaluator<'_> {
             return Ok(Valued::exact(intersection_value(&r)));
         }
         if which == "differentials" {
-            let forms = p.forms.iter().map(|f| Value::Str(f.clone())).collect();
+            let forms = user_forms(&p.forms, swapped(&c)).into_iter().map(Value::Str).collect();
             return Ok(Valued::exact(Value::List(forms)));
         }
         // In the cycles tau refers to (`periods::change_cycles` after a reduction).
@@ -71,7 +95,7 @@ impl Evaluator<'_> {
         let how = if p.plane.is_some() { "estimated error (two quadrature rules)" } else { "error <=" };
         let reason = format!(
             "{cycles}-periods of {} over the cycles of {} tau; {how} {err:.1e}",
-            p.forms.join(", "),
+            user_forms(&p.forms, swapped(&c)).join(", "),
             if r.reduced.is_some() { "the Siegel-reduced" } else { "the unreduced" }
         );
         Ok(Valued { value: matrix_value(&m), error_bound: err, reason: Some(reason) })
@@ -110,7 +134,7 @@ impl Evaluator<'_> {
             .unwrap_or_else(|| format!("{} = 0 (by the covering x: curve -> P^1)", c.equation.poly));
         let rows =
             r.tau.row_iter().map(|row| row.iter().map(|v| Num::Complex(*v)).collect::<Vec<_>>()).collect::<Vec<_>>();
-        Ok(Valued { value: Value::Matrix(rows), error_bound: r.error, reason: Some(summary(&r, &eq)) })
+        Ok(Valued { value: Value::Matrix(rows), error_bound: r.error, reason: Some(summary(&r, &eq, swapped(&c))) })
     }
 
     pub(crate) fn riemann_matrix(

@@ -30,7 +30,7 @@ pub(crate) fn theta_error(e: ThetaError, span: Span) -> Fail {
         ThetaError::NotSymmetric { .. } | ThetaError::NotPositiveDefinite { .. } => Code::NotRiemannMatrix,
         ThetaError::TooManyPoints { .. } => Code::BudgetExceeded,
         ThetaError::WrongLength { .. } | ThetaError::NotSquare { .. } | ThetaError::Empty => Code::ShapeMismatch,
-        ThetaError::NotFinite => Code::EvalFailed,
+        ThetaError::NotFinite | ThetaError::ReducedNotSymmetric { .. } => Code::EvalFailed,
     };
     fail(code, span, e.to_string())
 }

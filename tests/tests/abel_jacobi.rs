@@ -324,3 +324,27 @@ fn gcd(a: u64, b: u64) -> u64 {
         gcd(b, a % b)
     }
 }
+
+// Regressions from an audit with mpmath references (2026-12-03).
+#[test]
+fn audit_regressions() {
+    // A curve written x^m = f(y) shows its forms in its own coordinates (dy/x, not dx/y).
+    let e = fixture::eval("curve S: x^2 = y^5 - 5*y^2 + 4*y + 1\nlet D = differentials(S)\n");
+    let v = &e.values.iter().find(|v| v.name == "D").unwrap().value;
+    assert_eq!(v.value.to_string(), "[\"dy/x\", \"y dy/x\"]");
+    // Coordinates beyond double precision: a plain refusal, never "NaN away".
+    let got = codes("curve C: y^2 = x^5 - x + 1\nlet z = abel_jacobi(C, (1e300, 1e300))\n");
+    assert!(got.contains(&Code::EvalFailed), "{got:?}");
+    let e = kelp_evaluator::evaluate(
+        &kelp_lang::check("curve C: y^2 = x^5 - x + 1\nlet z = abel_jacobi(C, (1e300, 1e300))\n"),
+        "curve C: y^2 = x^5 - x + 1\nlet z = abel_jacobi(C, (1e300, 1e300))\n",
+        &kelp_evaluator::Mode::Check,
+    );
+    assert!(e.diagnostics.iter().all(|d| !d.message.contains("NaN")), "{:?}", e.diagnostics);
+    // y^2 = f(x + 1000) with coefficients near 1e15: a point on the curve to 1e-17 (mpmath)
+    // is accepted where double precision cannot place it better (its terms cancel).
+    let src = "curve C: y^2 = 1*x^5 + 5000*x^4 + 10000000*x^3 + 9999999995*x^2 + 4999999990004*x + 999999995004001\n\
+               let z = abel_jacobi(C, ((-999.5 + 0.29999999999999999i), (1.4654588080123915 - 0.092571691035107477i)))\n";
+    let got = codes(src);
+    assert!(got.is_empty(), "{got:?}");
+}

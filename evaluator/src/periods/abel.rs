@@ -313,6 +313,17 @@ impl<'a> AbelMap<'a> {
             .fold(f64::INFINITY, f64::min)
     }
 
+    /// How far from the curve double precision can tell a point (x, y): the rounding of
+    /// y^m - f(x) (64 units of the size of its terms) over the larger partial derivative.
+    pub fn rounding_limit(&self, x: C64, y: C64) -> f64 {
+        let m = self.m as i32;
+        let terms =
+            self.f.iter().enumerate().map(|(i, c)| c.norm() * x.norm().powi(i as i32)).sum::<f64>() + y.norm().powi(m);
+        let (_, dfx) = self.f_at(x);
+        let fy = m as f64 * y.powi(m - 1);
+        64.0 * f64::EPSILON * terms / fy.norm().max(dfx.norm())
+    }
+
     /// How fast the image moves with the point at (x, y): the largest |omega / d lambda|
     /// for the better local parameter lambda (x where dF/dy dominates, else y, which is the
     /// local parameter at a branch point), F = y^m - f(x).

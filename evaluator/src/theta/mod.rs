@@ -55,6 +55,11 @@ pub enum ThetaError {
         estimate: f64,
         limit: f64,
     },
+    /// Siegel's reduction of an ill-conditioned (symmetric) input left a rounding asymmetry
+    /// beyond what the reduced series accepts.
+    ReducedNotSymmetric {
+        defect: f64,
+    },
 }
 
 impl std::fmt::Display for ThetaError {
@@ -63,6 +68,10 @@ impl std::fmt::Display for ThetaError {
             ThetaError::NotSquare { rows, cols } => write!(f, "the Riemann matrix must be square; this is {rows} x {cols}"),
             ThetaError::Empty => write!(f, "the Riemann matrix is empty"),
             ThetaError::NotFinite => write!(f, "an entry is not a finite number"),
+            ThetaError::ReducedNotSymmetric { defect } => write!(
+                f,
+                "Siegel's reduction of this ill-conditioned matrix leaves a rounding asymmetry of {defect:.3e} in double precision, too much for a bounded value; the input itself is accepted as symmetric"
+            ),
             ThetaError::NotSymmetric { defect } => {
                 write!(f, "the matrix is not symmetric (largest |T_jk - T_kj| is {defect:.3e})")
             }

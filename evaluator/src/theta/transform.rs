@@ -191,7 +191,10 @@ fn finish(
     el: f64,
     accuracy: f64,
 ) -> Result<ThetaValue, ThetaError> {
-    let ctx = ThetaContext::new(t, 1e-12)?;
+    let ctx = ThetaContext::new(t, 1e-12).map_err(|e| match e {
+        ThetaError::NotSymmetric { defect } => ThetaError::ReducedNotSymmetric { defect },
+        other => other,
+    })?;
     let red = Characteristic { a: a.to_vec(), b: b.to_vec() };
     // exp(L) scales the reduced series' truncation: aim below accuracy / |exp(L)|.
     let reduced_accuracy = (accuracy * (-log.re).exp().min(1.0)).max(1e-300);
