@@ -15,7 +15,7 @@
 
 use crate::eval::{fail, Evaluator, Fail};
 use crate::num::Num;
-use crate::symplectic_fn::act_bounded;
+use crate::symplectic_fn::{act_bounded, square_complex as matrix};
 use crate::value::{Value, Valued};
 use kelp_lang::ast::Arg;
 use kelp_lang::{Code, Span};
@@ -45,12 +45,6 @@ fn moduli(constants: &[(C64, f64)]) -> Moduli {
 /// The first position where the two invariants are proved different.
 fn separated(a: &Moduli, b: &Moduli) -> Option<usize> {
     (0..a.lo.len()).find(|&k| a.hi[k] < b.lo[k] || b.hi[k] < a.lo[k])
-}
-
-fn matrix(v: &Value) -> Option<DMatrix<C64>> {
-    let Value::Matrix(rows) = v else { return None };
-    let g = rows.len();
-    rows.iter().all(|r| r.len() == g).then(|| DMatrix::from_fn(g, g, |i, j| rows[i][j].to_complex()))
 }
 
 impl Evaluator<'_> {

@@ -97,7 +97,7 @@ pub fn act_bounded(gamma: &DMatrix<i64>, t: &DMatrix<C64>, e: f64) -> Result<(DM
     Ok((sym, bound * (1.0 + 8.0 * U)))
 }
 
-fn square_complex(v: &Value) -> Option<DMatrix<C64>> {
+pub(crate) fn square_complex(v: &Value) -> Option<DMatrix<C64>> {
     let Value::Matrix(rows) = v else { return None };
     let g = rows.len();
     rows.iter().all(|r| r.len() == g).then(|| DMatrix::from_fn(g, g, |i, j| rows[i][j].to_complex()))
