@@ -58,3 +58,26 @@ fn isomorphic_models_agree_and_different_curves_differ() {
     ));
     assert!(!agree(&triple(&e, "a"), &triple(&e, "b")));
 }
+
+// Hostile models: clustered roots (near-singular), coefficients near 1e6, and a curve moved
+// by x -> x + 50 (the invariants do not change under translation; common practice, no
+// source): both routes must still agree within their bounds, and the moved model must
+// agree with the original.
+#[test]
+fn hostile_models() {
+    for hostile in ["y^2 = x*(x - 0.001)*(x - 1)*(x + 2)*(x - 3)", "y^2 = x^5 - 1000000*x^2 + 3*x + 7"] {
+        let e = fixture::eval(&format!(
+            "curve C: {hostile}\nlet a = igusa_invariants(C)\nlet b = igusa_invariants(tau(C))\n"
+        ));
+        let (a, b) = (triple(&e, "a"), triple(&e, "b"));
+        assert!(agree(&a, &b), "{hostile}: {a:?} vs {b:?}");
+    }
+    // (x + 50)^5 - (x + 50) + 1, expanded exactly (sympy 1.14 expand).
+    let moved = "y^2 = x^5 + 250*x^4 + 25000*x^3 + 1250000*x^2 + 31249999*x + 312499951";
+    let e = fixture::eval(&format!(
+        "curve A: y^2 = x^5 - x + 1\ncurve B: {moved}\nlet a = igusa_invariants(A)\nlet b = igusa_invariants(B)\nlet c = igusa_invariants(tau(B))\n"
+    ));
+    let (a, b, c) = (triple(&e, "a"), triple(&e, "b"), triple(&e, "c"));
+    assert!(agree(&a, &b), "moved roots: {a:?} vs {b:?}");
+    assert!(agree(&a, &c), "moved matrix: {a:?} vs {c:?}");
+}
